@@ -1,0 +1,28 @@
+import type { Role } from '$lib/roles';
+
+declare global {
+	namespace App {
+		interface Error {
+			message: string;
+			id?: string;
+		}
+		interface Locals {
+			/** The open session's id (from the JWT), used to revoke it at sign-out. */
+			sessionId: string | null;
+			/** The signed-in person, re-read from the database on every request; null when signed out. */
+			user: {
+				id: number;
+				displayName: string;
+				email: string | null;
+				roles: Role[];
+				siteId: number | null;
+				timeZone: string;
+			} | null;
+		}
+		// interface PageData {}
+		// interface PageState {}
+		// interface Platform {}
+	}
+}
+
+export {};

@@ -1,0 +1,67 @@
+import { json, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { randomUUID } from 'node:crypto';
+import { handle as authHandle } from '$lib/server/auth/authjs';
+import { loadSessionUser } from '$lib/server/auth/sessions';
+import { ensureBootstrapAdmin } from '$lib/server/people';
+
+export const init: ServerInit = async () => {
+	await ensureBootstrapAdmin();
+};
+
+/** Re-reads the signed-in person from the database on every request (revocation is immediate). */
+const user: Handle = async ({ event, resolve }) => {
+	const session = await event.locals.auth();
+	event.locals.sessionId = session?.sid ?? null;
+	event.locals.user = session?.sid ? await loadSessionUser(session.sid) : null;
+	return resolve(event);
+};
+
+const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
+
+/**
+ * SvelteKit checks Origin on form posts only. Cookie-authenticated JSON calls that change state get
+ * the same check here; calls with an API key (no cookies involved) are left to the key check.
+ */
+const apiOrigin: Handle = async ({ event, resolve }) => {
+	const { request, url } = event;
+	if (url.pathname.startsWith('/api/') && UNSAFE.has(request.method)) {
+		const usesKey = request.headers.get('authorization')?.startsWith('Bearer ');
+		if (!usesKey) {
+			const origin = request.headers.get('origin');
+			const site = request.headers.get('sec-fetch-site');
+			const sameOrigin = origin ? origin === url.origin : site === 'same-origin';
+			if (!sameOrigin) {
+				return json({ error: 'Cross-site request refused.' }, { status: 403 });
+			}
+		}
+	}
+	return resolve(event);
+};
+
+const headers: Handle = async ({ event, resolve }) => {
+	const response = await resolve(event);
+	const h = response.headers;
+	h.set('X-Content-Type-Options', 'nosniff');
+	h.set('Referrer-Policy', 'strict-origin-when-cross-origin');
+	h.set('X-Frame-Options', 'DENY');
+	h.set('Permissions-Policy', 'camera=(self), microphone=(), geolocation=()');
+	h.set('Cross-Origin-Opener-Policy', 'same-origin');
+	if (event.url.protocol === 'https:') {
+		h.set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
+	}
+	if (!h.has('Content-Security-Policy')) {
+		h.set('Content-Security-Policy', "default-src 'none'; frame-ancestors 'none'");
+	}
+	if (event.locals.user) h.set('Cache-Control', 'no-store');
+	return response;
+};
+
+export const handle = sequence(authHandle, user, apiOrigin, headers);
+
+export const handleError: HandleServerError = ({ error, event, status, message }) => {
+	if (status === 404) return { message: 'Not found' };
+	const id = randomUUID().slice(0, 8);
+	console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}`, error);
+	return { message: status >= 500 ? 'Something went wrong on our side.' : message, id };
+};

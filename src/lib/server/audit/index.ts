@@ -1,0 +1,183 @@
+import { and, asc, desc, eq, gt, gte, like, lte, or, sql, type SQL } from 'drizzle-orm';
+import { db, type DbOrTx, type Tx } from '../db';
+import { auditChain, auditEvents } from '../db/schema';
+import { auditRowHash, canonicalJson, GENESIS_HASH } from './chain';
+
+export interface Actor {
+	id: number | null;
+	label: string;
+	address?: string | null;
+}
+
+export interface AuditInput {
+	action: string;
+	entityType: string;
+	entityId?: string | number | null;
+	oldValues?: unknown;
+	newValues?: unknown;
+	reason?: string | null;
+}
+
+/** Values as they are stored: canonical JSON round-tripped, so the hash verifies after reading. */
+const storable = (v: unknown) =>
+	v === undefined || v === null ? null : JSON.parse(canonicalJson(v));
+
+/**
+ * Appends one event to the audit trail inside the caller's transaction, chained to the previous
+ * event. The chain head row is locked, so concurrent writers queue instead of forking the chain.
+ */
+export async function recordAudit(tx: Tx, actor: Actor | null, input: AuditInput): Promise<number> {
+	const [head] = await tx.select().from(auditChain).where(eq(auditChain.id, 1)).for('update');
+	const prevSeq = head?.lastSeq ?? 0;
+	const prevHash = head?.lastHash ?? GENESIS_HASH;
+	const at = new Date();
+	const fields = {
+		seq: prevSeq + 1,
+		at,
+		actorId: actor?.id ?? null,
+		actorLabel: actor?.label ?? 'system',
+		action: input.action,
+		entityType: input.entityType,
+		entityId: input.entityId == null ? null : String(input.entityId),
+		oldValues: storable(input.oldValues),
+		newValues: storable(input.newValues),
+		reason: input.reason ?? null,
+		address: actor?.address ?? null
+	};
+	const hash = auditRowHash(prevHash, fields);
+	await tx.insert(auditEvents).values({ ...fields, prevHash, hash });
+	if (head) {
+		await tx
+			.update(auditChain)
+			.set({ lastSeq: fields.seq, lastHash: hash })
+			.where(eq(auditChain.id, 1));
+	} else {
+		await tx.insert(auditChain).values({ id: 1, lastSeq: fields.seq, lastHash: hash });
+	}
+	return fields.seq;
+}
+
+/** Writes a single audit event in its own transaction (sign-ins, denied attempts, exports). */
+export async function recordAuditNow(actor: Actor | null, input: AuditInput): Promise<number> {
+	return db.transaction((tx) => recordAudit(tx, actor, input));
+}
+
+export interface ChainProblem {
+	seq: number;
+	problem: string;
+}
+
+/** Re-computes every hash in order; reports edited rows, removed rows and a moved chain head. */
+export async function verifyAuditChain(conn: DbOrTx = db): Promise<{
+	ok: boolean;
+	checked: number;
+	problems: ChainProblem[];
+}> {
+	const problems: ChainProblem[] = [];
+	let prevHash = GENESIS_HASH;
+	let expectedSeq = 1;
+	let checked = 0;
+	let lastSeq = 0;
+	const pageSize = 5000;
+	for (;;) {
+		const rows = await conn
+			.select()
+			.from(auditEvents)
+			.where(gt(auditEvents.seq, lastSeq))
+			.orderBy(asc(auditEvents.seq))
+			.limit(pageSize);
+		for (const r of rows) {
+			if (r.seq !== expectedSeq) {
+				problems.push({
+					seq: expectedSeq,
+					problem: `rows ${expectedSeq}–${r.seq - 1} are missing`
+				});
+			}
+			if (r.prevHash !== prevHash) {
+				problems.push({ seq: r.seq, problem: 'does not link to the previous row' });
+			}
+			const hash = auditRowHash(r.prevHash, {
+				...r,
+				oldValues: r.oldValues ?? null,
+				newValues: r.newValues ?? null
+			});
+			if (hash !== r.hash)
+				problems.push({ seq: r.seq, problem: 'content changed after it was written' });
+			prevHash = r.hash;
+			expectedSeq = r.seq + 1;
+			lastSeq = r.seq;
+			checked++;
+		}
+		if (rows.length < pageSize) break;
+	}
+	const [head] = await conn.select().from(auditChain).where(eq(auditChain.id, 1));
+	if (head && (head.lastSeq !== lastSeq || head.lastHash !== prevHash)) {
+		problems.push({
+			seq: head.lastSeq,
+			problem: 'the newest rows are missing (chain head points past them)'
+		});
+	}
+	return { ok: problems.length === 0, checked, problems };
+}
+
+export interface AuditFilter {
+	q?: string;
+	action?: string;
+	entityType?: string;
+	actorId?: number;
+	from?: Date;
+	to?: Date;
+	page?: number;
+	pageSize?: number;
+}
+
+/** A page of audit events, newest first, for the audit trail screen. */
+export async function listAuditEvents(f: AuditFilter) {
+	const where: SQL[] = [];
+	if (f.action) where.push(eq(auditEvents.action, f.action));
+	if (f.entityType) where.push(eq(auditEvents.entityType, f.entityType));
+	if (f.actorId) where.push(eq(auditEvents.actorId, f.actorId));
+	if (f.from) where.push(gte(auditEvents.at, f.from));
+	if (f.to) where.push(lte(auditEvents.at, f.to));
+	if (f.q) {
+		const q = `%${f.q.replace(/[%_\\]/g, (c) => '\\' + c)}%`;
+		const m = or(
+			like(auditEvents.actorLabel, q),
+			like(auditEvents.entityId, q),
+			like(auditEvents.reason, q),
+			like(auditEvents.action, q)
+		);
+		if (m) where.push(m);
+	}
+	const pageSize = f.pageSize ?? 50;
+	const page = Math.max(1, f.page ?? 1);
+	const cond = where.length ? and(...where) : undefined;
+	const rows = await db
+		.select()
+		.from(auditEvents)
+		.where(cond)
+		.orderBy(desc(auditEvents.seq))
+		.limit(pageSize)
+		.offset((page - 1) * pageSize);
+	const [{ total }] = await db
+		.select({ total: sql<number>`count(*)` })
+		.from(auditEvents)
+		.where(cond);
+	const actions = await db
+		.selectDistinct({ action: auditEvents.action })
+		.from(auditEvents)
+		.orderBy(asc(auditEvents.action));
+	return { rows, total: Number(total), page, pageSize, actions: actions.map((a) => a.action) };
+}
+
+/** The audit actor for a request: the signed-in person and the client address. */
+export function actorFrom(event: { locals: App.Locals; getClientAddress: () => string }): Actor {
+	const u = event.locals.user;
+	let address: string | null = null;
+	try {
+		address = event.getClientAddress();
+	} catch {
+		address = null;
+	}
+	return { id: u?.id ?? null, label: u?.displayName ?? 'anonymous', address };
+}

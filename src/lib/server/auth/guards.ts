@@ -1,0 +1,36 @@
+import { error, redirect } from '@sveltejs/kit';
+import type { Role } from '../../roles';
+import type { SessionUser } from './sessions';
+
+type WithUser = { locals: App.Locals; url: URL };
+
+/** The signed-in person, or a redirect to sign-in that comes back to this page. */
+export function requireUser(event: WithUser): SessionUser {
+	const user = event.locals.user;
+	if (!user) {
+		const back = event.url.pathname + event.url.search;
+		redirect(303, `/signin?redirectTo=${encodeURIComponent(back)}`);
+	}
+	return user;
+}
+
+/** The signed-in person holding at least one of `roles`; 403 otherwise. */
+export function requireRole(event: WithUser, ...roles: Role[]): SessionUser {
+	const user = requireUser(event);
+	if (!roles.some((r) => user.roles.includes(r))) {
+		error(403, {
+			message: `This page is for ${roles.join(', ')}. Your roles: ${user.roles.join(', ') || 'none'}.`
+		});
+	}
+	return user;
+}
+
+/** For JSON endpoints: 401 instead of a redirect when nobody is signed in. */
+export function requireApiRole(event: WithUser, ...roles: Role[]): SessionUser {
+	const user = event.locals.user;
+	if (!user) error(401, { message: 'Sign in first.' });
+	if (roles.length && !roles.some((r) => user.roles.includes(r))) {
+		error(403, { message: `Needs one of the roles: ${roles.join(', ')}.` });
+	}
+	return user;
+}

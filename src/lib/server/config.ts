@@ -1,0 +1,17 @@
+// Server settings read from the environment, with the defaults the README documents.
+// Plain process.env (not $env) so scripts run with tsx can import server modules too.
+const e = process.env;
+
+export const config = {
+	authSecret: e.AUTH_SECRET ?? '',
+	demo: e.PADBRIDGE_DEMO === '1',
+	sessionHours: Number(e.SESSION_HOURS ?? 12),
+	throttle: {
+		windowMinutes: Number(e.SIGNIN_WINDOW_MINUTES ?? 15),
+		perAccount: Number(e.SIGNIN_MAX_PER_ACCOUNT ?? 10),
+		perAddress: Number(e.SIGNIN_MAX_PER_ADDRESS ?? 50)
+	},
+	adminEmail: e.ADMIN_EMAIL,
+	adminPassword: e.ADMIN_PASSWORD,
+	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2'
+};

@@ -1,0 +1,314 @@
+import { and, asc, eq, inArray, sql } from 'drizzle-orm';
+import { db } from '../db';
+import { lines, people, roleAssignments, shifts, authSessions } from '../db/schema';
+import { recordAudit, type Actor } from '../audit';
+import { hashSecret, verifySecret } from '../auth/password';
+import { config } from '../config';
+import type { PersonInput } from '../../schemas/people';
+import type { Role } from '../../roles';
+
+export class ConflictError extends Error {
+	constructor(
+		public field: string,
+		message: string
+	) {
+		super(message);
+	}
+}
+
+/** All people with their roles, line and shift, for the admin list. */
+export async function listPeople() {
+	const rows = await db
+		.select({
+			id: people.id,
+			employeeNo: people.employeeNo,
+			displayName: people.displayName,
+			email: people.email,
+			badgeNo: people.badgeNo,
+			employmentType: people.employmentType,
+			contractEndsOn: people.contractEndsOn,
+			active: people.active,
+			line: lines.code,
+			shift: shifts.code,
+			roles: sql<
+				string | null
+			>`(select group_concat(${roleAssignments.role} order by ${roleAssignments.role}) from ${roleAssignments} where ${roleAssignments.personId} = ${people.id})`
+		})
+		.from(people)
+		.leftJoin(lines, eq(lines.id, people.lineId))
+		.leftJoin(shifts, eq(shifts.id, people.shiftId))
+		.orderBy(asc(people.displayName));
+	return rows.map((r) => ({ ...r, roles: (r.roles ?? '').split(',').filter(Boolean) as Role[] }));
+}
+
+/** One person as the edit form needs it (no secrets). */
+export async function getPerson(id: number) {
+	const [p] = await db
+		.select({
+			id: people.id,
+			employeeNo: people.employeeNo,
+			displayName: people.displayName,
+			email: people.email,
+			badgeNo: people.badgeNo,
+			locale: people.locale,
+			employmentType: people.employmentType,
+			agencyName: people.agencyName,
+			contractEndsOn: people.contractEndsOn,
+			lineId: people.lineId,
+			shiftId: people.shiftId,
+			active: people.active,
+			hasPassword: sql<number>`${people.passwordHash} is not null`,
+			hasPin: sql<number>`${people.pinHash} is not null`
+		})
+		.from(people)
+		.where(eq(people.id, id));
+	if (!p) return null;
+	const roles = await db
+		.select({ role: roleAssignments.role })
+		.from(roleAssignments)
+		.where(eq(roleAssignments.personId, id));
+	return {
+		...p,
+		hasPassword: Boolean(Number(p.hasPassword)),
+		hasPin: Boolean(Number(p.hasPin)),
+		roles: roles.map((r) => r.role)
+	};
+}
+
+function duplicateField(err: unknown): string | null {
+	const msg = err instanceof Error ? err.message : '';
+	const cause = (err as { cause?: { code?: string; message?: string } })?.cause;
+	const text = `${msg} ${cause?.message ?? ''}`;
+	if (!/Duplicate entry/.test(text)) return null;
+	if (/employee_no/.test(text)) return 'employeeNo';
+	if (/email/.test(text)) return 'email';
+	if (/badge_no/.test(text)) return 'badgeNo';
+	return 'employeeNo';
+}
+
+const FIELD_LABEL: Record<string, string> = {
+	employeeNo: 'employee number',
+	email: 'e-mail address',
+	badgeNo: 'badge number'
+};
+
+function record(input: PersonInput) {
+	return {
+		employeeNo: input.employeeNo,
+		displayName: input.displayName,
+		email: input.email,
+		badgeNo: input.badgeNo,
+		locale: input.locale,
+		employmentType: input.employmentType,
+		agencyName: input.employmentType === 'agency' ? input.agencyName : null,
+		contractEndsOn: input.contractEndsOn,
+		lineId: input.lineId,
+		shiftId: input.shiftId
+	};
+}
+
+/** Adds a person with their roles; duplicate identifiers come back as a ConflictError on the field. */
+export async function createPerson(actor: Actor, input: PersonInput, siteId: number | null) {
+	try {
+		return await db.transaction(async (tx) => {
+			const values = { ...record(input), siteId };
+			const [{ id }] = await tx.insert(people).values(values).$returningId();
+			await tx.insert(roleAssignments).values(input.roles.map((role) => ({ personId: id, role })));
+			await recordAudit(tx, actor, {
+				action: 'person.create',
+				entityType: 'person',
+				entityId: id,
+				newValues: { ...values, roles: input.roles }
+			});
+			return id;
+		});
+	} catch (err) {
+		const field = duplicateField(err);
+		if (field)
+			throw new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
+		throw err;
+	}
+}
+
+/** Saves changes; a change of roles ends the person's open sessions. */
+export async function updatePerson(actor: Actor, id: number, input: PersonInput) {
+	try {
+		await db.transaction(async (tx) => {
+			const [old] = await tx.select().from(people).where(eq(people.id, id)).for('update');
+			if (!old) throw new Error(`person ${id} vanished`);
+			const oldRoles = (
+				await tx
+					.select({ role: roleAssignments.role })
+					.from(roleAssignments)
+					.where(eq(roleAssignments.personId, id))
+			).map((r) => r.role);
+			const next = record(input);
+			const rolesChanged =
+				oldRoles.length !== input.roles.length || oldRoles.some((r) => !input.roles.includes(r));
+			await tx
+				.update(people)
+				.set({
+					...next,
+					sessionVersion: rolesChanged ? old.sessionVersion + 1 : old.sessionVersion
+				})
+				.where(eq(people.id, id));
+			if (rolesChanged) {
+				await tx.delete(roleAssignments).where(eq(roleAssignments.personId, id));
+				await tx
+					.insert(roleAssignments)
+					.values(input.roles.map((role) => ({ personId: id, role })));
+			}
+			const before: Record<string, unknown> = {};
+			const after: Record<string, unknown> = {};
+			for (const k of Object.keys(next) as (keyof typeof next)[]) {
+				if (old[k] !== next[k]) {
+					before[k] = old[k];
+					after[k] = next[k];
+				}
+			}
+			if (rolesChanged) {
+				before.roles = [...oldRoles].sort();
+				after.roles = [...input.roles].sort();
+			}
+			await recordAudit(tx, actor, {
+				action: rolesChanged ? 'person.update_roles' : 'person.update',
+				entityType: 'person',
+				entityId: id,
+				oldValues: before,
+				newValues: after
+			});
+		});
+	} catch (err) {
+		const field = duplicateField(err);
+		if (field)
+			throw new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
+		throw err;
+	}
+}
+
+/** Deactivates or reactivates a person; deactivation ends every open session at once. */
+export async function setPersonActive(actor: Actor, id: number, active: boolean, reason: string) {
+	await db.transaction(async (tx) => {
+		const [old] = await tx.select().from(people).where(eq(people.id, id)).for('update');
+		if (!old) throw new Error(`person ${id} vanished`);
+		if (old.active === active) return;
+		await tx
+			.update(people)
+			.set({ active, sessionVersion: old.sessionVersion + 1 })
+			.where(eq(people.id, id));
+		if (!active) {
+			await tx
+				.update(authSessions)
+				.set({ revokedAt: new Date() })
+				.where(and(eq(authSessions.personId, id), sql`${authSessions.revokedAt} is null`));
+		}
+		await recordAudit(tx, actor, {
+			action: active ? 'person.reactivate' : 'person.deactivate',
+			entityType: 'person',
+			entityId: id,
+			oldValues: { active: old.active },
+			newValues: { active },
+			reason
+		});
+	});
+}
+
+/** Sets a new password or PIN (hashed), ending the person's sessions. The secret is never audited. */
+export async function resetSecret(
+	actor: Actor,
+	id: number,
+	kind: 'password' | 'pin',
+	secret: string,
+	reason: string
+) {
+	const hashed = await hashSecret(secret);
+	await db.transaction(async (tx) => {
+		const [old] = await tx
+			.select({ v: people.sessionVersion })
+			.from(people)
+			.where(eq(people.id, id))
+			.for('update');
+		if (!old) throw new Error(`person ${id} vanished`);
+		await tx
+			.update(people)
+			.set(
+				kind === 'password'
+					? { passwordHash: hashed, sessionVersion: old.v + 1 }
+					: { pinHash: hashed, sessionVersion: old.v + 1 }
+			)
+			.where(eq(people.id, id));
+		await recordAudit(tx, actor, {
+			action: kind === 'password' ? 'person.reset_password' : 'person.reset_pin',
+			entityType: 'person',
+			entityId: id,
+			reason
+		});
+	});
+}
+
+/** Lines and shifts for the person form's choices. */
+export async function personFormChoices() {
+	const [l, s] = await Promise.all([
+		db
+			.select({ id: lines.id, code: lines.code, name: lines.name })
+			.from(lines)
+			.orderBy(asc(lines.code)),
+		db
+			.select({ id: shifts.id, code: shifts.code, name: shifts.name })
+			.from(shifts)
+			.orderBy(asc(shifts.code))
+	]);
+	return { lines: l, shifts: s };
+}
+
+/**
+ * First-run bootstrap: with ADMIN_EMAIL and ADMIN_PASSWORD set, make sure that admin exists, is
+ * active, holds the admin role and has that password.
+ */
+export async function ensureBootstrapAdmin() {
+	const email = config.adminEmail?.trim().toLowerCase();
+	const password = config.adminPassword;
+	if (!email || !password) return;
+	const [current] = await db.select().from(people).where(eq(people.email, email));
+	if (current?.active && (await verifySecret(current.passwordHash, password))) {
+		const roles = await db
+			.select()
+			.from(roleAssignments)
+			.where(eq(roleAssignments.personId, current.id));
+		if (roles.some((r) => r.role === 'admin')) return;
+	}
+	const passwordHash = await hashSecret(password);
+	await db.transaction(async (tx) => {
+		const [existing] = await tx.select().from(people).where(eq(people.email, email)).for('update');
+		const system = { id: null, label: 'bootstrap (ADMIN_EMAIL)' };
+		let id: number;
+		if (existing) {
+			id = existing.id;
+			await tx
+				.update(people)
+				.set({ passwordHash, active: true, sessionVersion: existing.sessionVersion + 1 })
+				.where(eq(people.id, id));
+		} else {
+			[{ id }] = await tx
+				.insert(people)
+				.values({
+					employeeNo: `ADMIN-${Date.now().toString(36).toUpperCase()}`,
+					displayName: 'Administrator',
+					email,
+					passwordHash
+				})
+				.$returningId();
+		}
+		const has = await tx
+			.select()
+			.from(roleAssignments)
+			.where(and(eq(roleAssignments.personId, id), inArray(roleAssignments.role, ['admin'])));
+		if (has.length === 0) await tx.insert(roleAssignments).values({ personId: id, role: 'admin' });
+		await recordAudit(tx, system, {
+			action: existing ? 'person.bootstrap_admin_reset' : 'person.bootstrap_admin_create',
+			entityType: 'person',
+			entityId: id,
+			newValues: { email, roles: ['admin'] }
+		});
+	});
+}
