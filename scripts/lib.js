@@ -8,9 +8,12 @@ import { setTimeout as sleep } from 'node:timers/promises';
 
 export const root = resolve(import.meta.dirname, '..');
 
-/** Ports and folders per mode. Test ports can be moved with PADBRIDGE_TEST_PORT_OFFSET. */
+/**
+ * Ports and folders per mode. PADBRIDGE_PORT_OFFSET moves every port, so two checkouts can run
+ * their own copies side by side; test mode adds 100 to keep clear of a running `npm start`.
+ */
 export function modeConfig(mode) {
-	const offset = mode === 'test' ? 100 + Number(process.env.PADBRIDGE_TEST_PORT_OFFSET ?? 0) : 0;
+	const offset = (mode === 'test' ? 100 : 0) + Number(process.env.PADBRIDGE_PORT_OFFSET ?? 0);
 	const dataDir = join(root, '.data', mode);
 	return {
 		mode,

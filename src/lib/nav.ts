@@ -10,10 +10,13 @@ export interface NavItem {
 /** The areas of Padbridge; each role sees only what it can use. */
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Home', roles: [] },
+	// instructions: { href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
+	// help: { href: '/help', label: 'Help', roles: [] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
-	{ href: '/admin/plant', label: 'Plant', roles: ['admin'] }
+	{ href: '/admin/plant', label: 'Plant', roles: ['admin'] },
+	{ href: '/admin/api-keys', label: 'API keys', roles: ['admin'] }
 ];
 
 export function navFor(roles: readonly Role[]): NavItem[] {
