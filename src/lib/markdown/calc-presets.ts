@@ -1,3 +1,4 @@
+import type { z } from 'zod';
 import { listSchema, numberSchema, selectSchema } from '../calculators/fields';
 import {
 	calculators,
@@ -15,14 +16,25 @@ export interface ParsedCalcPresets {
 /** Longer values are refused: nothing a calculator takes (not even a list as JSON) needs more. */
 const MAX_VALUE_CHARS = 4000;
 
+// Building a zod schema costs far more than using one; the registry's input definitions never change.
+const schemas = new WeakMap<InputDef, z.ZodType>();
+
+function schemaFor(def: InputDef): z.ZodType {
+	let schema = schemas.get(def);
+	if (!schema) {
+		schema =
+			def.kind === 'number'
+				? numberSchema(def)
+				: def.kind === 'select'
+					? selectSchema(def)
+					: listSchema(def);
+		schemas.set(def, schema);
+	}
+	return schema;
+}
+
 function validateValue(def: InputDef, value: string): string | null {
-	const schema =
-		def.kind === 'number'
-			? numberSchema(def)
-			: def.kind === 'select'
-				? selectSchema(def)
-				: listSchema(def);
-	const result = schema.safeParse(value);
+	const result = schemaFor(def).safeParse(value);
 	return result.success ? null : (result.error.issues[0]?.message ?? 'invalid value');
 }
 
