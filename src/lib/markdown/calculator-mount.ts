@@ -48,7 +48,7 @@ export function readCalcBlock(element: HTMLElement): CalculatorBlockProps | null
 
 /**
  * Mounts the live calculator into every `.calc-block` under `root`, keeping each block's fallback
- * (hidden) for print. Returns the function that unmounts them again.
+ * (out of sight on screen, shown on paper). Returns the function that unmounts them again.
  */
 export function mountCalculatorBlocks(root: HTMLElement): () => void {
 	const blocks = [...root.querySelectorAll<HTMLElement>('.calc-block')];
@@ -66,11 +66,11 @@ export function mountCalculatorBlocks(root: HTMLElement): () => void {
 			target.className = 'calc-live';
 			block.append(target);
 			const instance = mount(Block, { target, props });
-			if (fallback) fallback.hidden = true;
+			fallback?.classList.add('is-replaced');
 			undo.push(() => {
 				void unmount(instance);
 				target.remove();
-				if (fallback) fallback.hidden = false;
+				fallback?.classList.remove('is-replaced');
 			});
 		}
 	});
