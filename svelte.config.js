@@ -1,11 +1,16 @@
 import adapter from '@sveltejs/adapter-node';
 import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 import { mdsvex } from 'mdsvex';
+import { highlightForMdsvex } from './src/lib/markdown/highlighter.js';
 
 /** @type {import('@sveltejs/kit').Config} */
 const config = {
 	extensions: ['.svelte', '.md'],
-	preprocess: [vitePreprocess(), mdsvex({ extensions: ['.md'] })],
+	preprocess: [
+		vitePreprocess(),
+		// Help pages: code is highlighted here, at build time, with the instructions' own shiki set-up.
+		mdsvex({ extensions: ['.md'], highlight: { highlighter: highlightForMdsvex } })
+	],
 	kit: {
 		adapter: adapter(),
 		// Nonces for SvelteKit's own inline bootstrap script; no 'unsafe-inline' for scripts anywhere.

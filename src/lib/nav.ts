@@ -12,7 +12,7 @@ export const NAV: NavItem[] = [
 	{ href: '/', label: 'Home', roles: [] },
 	// instructions: { href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
-	// help: { href: '/help', label: 'Help', roles: [] },
+	{ href: '/help', label: 'Help', roles: [] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
 	{ href: '/admin/plant', label: 'Plant', roles: ['admin'] },
