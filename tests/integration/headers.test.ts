@@ -1,33 +1,12 @@
 // Security headers, cookie flags, cross-site request refusal, error pages and the health check, as
 // the built server answers them.
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import {
-	closeDbHelpers,
-	createTestPerson,
-	queryRows,
-	appDb,
-	retireTestPeople
-} from '../helpers/db';
-import {
-	APP_URL,
-	newClient,
-	postPasswordSignIn,
-	SESSION_COOKIE,
-	signInAsDemo,
-	type HttpClient
-} from '../helpers/http-session';
+import { describe, expect, it, vi } from 'vitest';
+import { appDb, createTestPerson, queryRows } from '../helpers/db';
+import { APP_URL, newClient, postPasswordSignIn, SESSION_COOKIE } from '../helpers/http-session';
+import { useDemoSession } from '../helpers/lifecycle';
 
 const EVIL = 'https://evil.example';
-let admin: HttpClient;
-
-beforeAll(async () => {
-	admin = await signInAsDemo('admin');
-});
-
-afterAll(async () => {
-	await retireTestPeople();
-	await closeDbHelpers();
-});
+const admin = useDemoSession('admin');
 
 /** The directives of a Content-Security-Policy header, by name. */
 function csp(res: Response): Map<string, string[]> {
@@ -65,7 +44,7 @@ function expectPageCsp(res: Response, html: string) {
 
 describe('security headers', () => {
 	it('on a signed-in page: CSP with a nonce, nosniff, no framing, no caching', async () => {
-		const res = await admin.get('/');
+		const res = await admin.client.get('/');
 		expect(res.status).toBe(200);
 		const html = await res.text();
 		expectCommonHeaders(res);
@@ -76,7 +55,7 @@ describe('security headers', () => {
 	it('with a fresh nonce on every response', async () => {
 		const nonces = await Promise.all(
 			[1, 2].map(async () => {
-				const res = await admin.get('/');
+				const res = await admin.client.get('/');
 				await res.body?.cancel();
 				return csp(res)
 					.get('script-src')!
@@ -102,7 +81,7 @@ describe('security headers', () => {
 	});
 
 	it('on an API response to someone signed in, also no caching', async () => {
-		const res = await admin.get('/api/health', { headers: { accept: 'application/json' } });
+		const res = await admin.client.get('/api/health', { headers: { accept: 'application/json' } });
 		expect(res.headers.get('cache-control')).toBe('no-store');
 		await res.body?.cancel();
 	});
@@ -125,7 +104,7 @@ describe('the session cookie', () => {
 describe('cross-site requests', () => {
 	it('refuses a form post from another origin, even with a valid session cookie', async () => {
 		const employeeNo = `X-${Date.now().toString(36).toUpperCase()}`;
-		const res = await admin.postForm(
+		const res = await admin.client.postForm(
 			'/admin/people/new?/save',
 			{
 				employeeNo,
@@ -155,7 +134,7 @@ describe('cross-site requests', () => {
 	});
 
 	it('refuses a cookie-authenticated API call from another origin with JSON', async () => {
-		const res = await admin.post('/api/health', '{}', {
+		const res = await admin.client.post('/api/health', '{}', {
 			headers: { origin: EVIL, 'content-type': 'application/json', accept: 'application/json' }
 		});
 		expect(res.status).toBe(403);
@@ -164,7 +143,7 @@ describe('cross-site requests', () => {
 	});
 
 	it('refuses it without an Origin header when the browser says it is cross-site', async () => {
-		const res = await admin.post('/api/health', '{}', {
+		const res = await admin.client.post('/api/health', '{}', {
 			headers: {
 				origin: '',
 				'sec-fetch-site': 'cross-site',
@@ -177,7 +156,7 @@ describe('cross-site requests', () => {
 	});
 
 	it('lets the same call through from the app itself (and the route then answers)', async () => {
-		const res = await admin.post('/api/health', '{}', {
+		const res = await admin.client.post('/api/health', '{}', {
 			headers: { 'content-type': 'application/json', accept: 'application/json' }
 		});
 		// /api/health has no POST handler: 405 shows the Origin check did not stop it.
@@ -188,7 +167,7 @@ describe('cross-site requests', () => {
 
 describe('error pages', () => {
 	it('answer a malformed address with the error page: a reference id, no stack trace', async () => {
-		const res = await admin.get('/admin/people/%E0%A4%A');
+		const res = await admin.client.get('/admin/people/%E0%A4%A');
 		expect(res.status).toBe(400);
 		const html = await res.text();
 		const id = /Reference for the help desk: <span[^>]*>([0-9a-f]{8})</.exec(html)?.[1];
@@ -225,14 +204,14 @@ describe('error pages', () => {
 			'/admin/people/-1',
 			'/admin/people/1e3'
 		]) {
-			const res = await admin.get(path);
+			const res = await admin.client.get(path);
 			expect(res.status, path).toBe(404);
 			expect(await res.text(), path).toContain('This page does not exist');
 		}
 	});
 
 	it('answer an id that matches no one with a 404 page too', async () => {
-		const res = await admin.get('/admin/people/9999999999999999');
+		const res = await admin.client.get('/admin/people/9999999999999999');
 		expect(res.status).toBe(404);
 		expect(await res.text()).toContain('No such person');
 	});

@@ -1,37 +1,21 @@
 // Sessions are re-checked on every request: what an admin changes takes effect on the person's
 // very next request, and a signed-out cookie stays dead when replayed.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { localDate } from '../../src/lib/time';
-import {
-	appDb,
-	closeDbHelpers,
-	createTestPerson,
-	queryRows,
-	retireTestPeople,
-	type TestPerson
-} from '../helpers/db';
+import { appDb, createTestPerson, queryRows, type TestPerson } from '../helpers/db';
 import {
 	newClient,
 	postPasswordSignIn,
 	SESSION_COOKIE,
-	signInAsDemo,
 	signInMessage,
 	signInWithBadge,
 	signInWithPassword,
 	type HttpClient
 } from '../helpers/http-session';
+import { useDemoSession } from '../helpers/lifecycle';
 
 const PLANT_ZONE = 'Asia/Ho_Chi_Minh';
-let admin: HttpClient;
-
-beforeAll(async () => {
-	admin = await signInAsDemo('admin');
-});
-
-afterAll(async () => {
-	await retireTestPeople();
-	await closeDbHelpers();
-});
+const admin = useDemoSession('admin');
 
 /** The person form as the edit page posts it, with the given roles. */
 function personForm(p: TestPerson, roles: string[]) {
@@ -76,7 +60,7 @@ describe('session invalidation', () => {
 		const client = await signInWithPassword(p.email!, p.password);
 		await expectOk(client);
 
-		const res = await admin.postForm(`/admin/people/${p.id}?/deactivate`, {
+		const res = await admin.client.postForm(`/admin/people/${p.id}?/deactivate`, {
 			reason: 'left the company'
 		});
 		expect(res.status).toBe(303);
@@ -87,7 +71,7 @@ describe('session invalidation', () => {
 		});
 
 		// Reactivation restores the person, not the old session.
-		const back = await admin.postForm(`/admin/people/${p.id}?/reactivate`, {
+		const back = await admin.client.postForm(`/admin/people/${p.id}?/reactivate`, {
 			reason: 'rehired'
 		});
 		expect(back.status).toBe(303);
@@ -100,7 +84,10 @@ describe('session invalidation', () => {
 		const client = await signInWithPassword(p.email!, p.password);
 		await expectOk(client, '/admin/people');
 
-		const saved = await admin.postForm(`/admin/people/${p.id}?/save`, personForm(p, ['operator']));
+		const saved = await admin.client.postForm(
+			`/admin/people/${p.id}?/save`,
+			personForm(p, ['operator'])
+		);
 		expect(saved.status).toBe(200);
 		const denied = await client.get('/admin/people');
 		expect(denied.status).toBe(403);
@@ -111,7 +98,10 @@ describe('session invalidation', () => {
 		});
 
 		// And a role given back works at once too.
-		await admin.postForm(`/admin/people/${p.id}?/save`, personForm(p, ['operator', 'admin']));
+		await admin.client.postForm(
+			`/admin/people/${p.id}?/save`,
+			personForm(p, ['operator', 'admin'])
+		);
 		await expectOk(client, '/admin/people');
 	});
 
@@ -121,7 +111,7 @@ describe('session invalidation', () => {
 		const second = await signInWithBadge(p.badge!, p.pin);
 		const newPassword = 'a-fresh-passphrase-for-tests';
 
-		const res = await admin.postForm(`/admin/people/${p.id}?/reset`, {
+		const res = await admin.client.postForm(`/admin/people/${p.id}?/reset`, {
 			kind: 'password',
 			secret: newPassword,
 			reason: 'forgot it'
@@ -147,7 +137,7 @@ describe('session invalidation', () => {
 		const p = await createTestPerson({ roles: ['operator'], withEmail: false });
 		const client = await signInWithBadge(p.badge!, p.pin);
 		await expectOk(client);
-		const res = await admin.postForm(`/admin/people/${p.id}?/reset`, {
+		const res = await admin.client.postForm(`/admin/people/${p.id}?/reset`, {
 			kind: 'pin',
 			secret: '86420975',
 			reason: 'badge shared by mistake'

@@ -87,7 +87,9 @@ function fieldConflict(err: unknown): ConflictError | null {
 	const cause = (err as { cause?: { code?: string; message?: string } })?.cause;
 	const text = `${msg} ${cause?.message ?? ''}`;
 	if (/Duplicate entry/.test(text)) {
-		const field = /email/.test(text) ? 'email' : /badge_no/.test(text) ? 'badgeNo' : 'employeeNo';
+		// Judge by the unique key's name (people_badgeNo_unique, ...), not by the duplicated value.
+		const key = /for key '([^']+)'/.exec(text)?.[1] ?? '';
+		const field = /email/i.test(key) ? 'email' : /badge_?no/i.test(key) ? 'badgeNo' : 'employeeNo';
 		return new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
 	}
 	// The chosen line or shift was removed after the form was loaded (or the post was hand-made).
