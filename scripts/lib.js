@@ -5,6 +5,7 @@ import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, readdirSync, statSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
+import { APPEND_ONLY_TABLES } from './append-only.js';
 
 export const root = resolve(import.meta.dirname, '..');
 
@@ -220,8 +221,7 @@ GRANT ALL PRIVILEGES ON \`${cfg.dbName}\\_scratch%\`.* TO 'padbridge_owner'@'127
 	);
 }
 
-/** Tables the app may only append to and read; MariaDB refuses its UPDATE and DELETE on them. */
-export const APPEND_ONLY_TABLES = ['audit_events', 'gate_checks', 'signatures'];
+export { APPEND_ONLY_TABLES };
 
 /** Table-level grants for the app user, re-applied after each migration. */
 export function grantAppUser(cfg) {

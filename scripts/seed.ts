@@ -118,7 +118,8 @@ const OFFICE: Seed[] = [
 		name: a.name,
 		email: a.email,
 		roles: [a.role as Role],
-		line: a.role === 'lead' ? ('L1' as const) : undefined,
+		// The demo trainer coaches on L1, so their home shows that line's stations.
+		line: a.role === 'lead' || a.role === 'trainer' ? ('L1' as const) : undefined,
 		shift: a.role === 'lead' ? ('A' as const) : undefined
 	})),
 	{

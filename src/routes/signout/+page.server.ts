@@ -1,5 +1,5 @@
 import { redirect } from '@sveltejs/kit';
-import { signOut, withForm } from '$lib/server/auth/authjs';
+import { clearSessionCookie } from '$lib/server/auth/authjs';
 import { revokeSession } from '$lib/server/auth/sessions';
 import { recordAuditNow } from '$lib/server/audit';
 import type { Actions, PageServerLoad } from './$types';
@@ -16,6 +16,7 @@ export const actions: Actions = {
 				{ action: 'auth.signout', entityType: 'person', entityId: locals.user.id }
 			);
 		}
-		await signOut(withForm(event, { redirectTo: '/signin?signedOut=1' }));
+		await clearSessionCookie(event);
+		redirect(303, '/signin?signedOut=1');
 	}
 };

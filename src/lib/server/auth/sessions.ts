@@ -4,6 +4,7 @@ import { db } from '../db';
 import { authSessions, people, roleAssignments, sites } from '../db/schema';
 import { ROLES, type Role } from '../../roles';
 import { config } from '../config';
+import { hasContractEnded } from '../../employment';
 
 export interface SessionUser {
 	id: number;
@@ -39,7 +40,8 @@ export async function revokeSession(id: string): Promise<void> {
 
 /**
  * The person behind a session, re-read on every request: null when the session was revoked or has
- * expired, the person is inactive, or their session version moved on (role change, reset, ...).
+ * expired, the person is inactive or past their contract's end, or their session version moved
+ * on (role change, reset, ...).
  */
 export async function loadSessionUser(sessionId: string): Promise<SessionUser | null> {
 	const rows = await db
@@ -48,6 +50,7 @@ export async function loadSessionUser(sessionId: string): Promise<SessionUser | 
 			displayName: people.displayName,
 			email: people.email,
 			siteId: people.siteId,
+			contractEndsOn: people.contractEndsOn,
 			timeZone: sites.timeZone,
 			roles: sql<
 				string | null
@@ -68,6 +71,8 @@ export async function loadSessionUser(sessionId: string): Promise<SessionUser | 
 		.limit(1);
 	const r = rows[0];
 	if (!r) return null;
+	const timeZone = r.timeZone ?? 'UTC';
+	if (hasContractEnded(r.contractEndsOn, timeZone)) return null;
 	const roles = (r.roles ?? '')
 		.split(',')
 		.filter((x): x is Role => (ROLES as readonly string[]).includes(x));
@@ -77,6 +82,6 @@ export async function loadSessionUser(sessionId: string): Promise<SessionUser | 
 		email: r.email,
 		roles,
 		siteId: r.siteId,
-		timeZone: r.timeZone ?? 'UTC'
+		timeZone
 	};
 }

@@ -1,9 +1,10 @@
 import { eq } from 'drizzle-orm';
 import { db } from '../db';
-import { people } from '../db/schema';
+import { people, sites } from '../db/schema';
+import { hasContractEnded } from '../../employment';
 import { recordAuditNow } from '../audit';
 import { verifySecret } from './password';
-import { clearAccountFailures, isThrottled, recordSignInFailure } from './throttle';
+import { beginSignInTry, settleSuccessfulTry, trimOldFailures } from './throttle';
 import { openSession } from './sessions';
 
 export type SignInMethod = 'password' | 'badge';
@@ -13,8 +14,9 @@ export type SignInResult =
 	| { ok: false; reason: 'invalid' | 'throttled' };
 
 /**
- * Checks an e-mail + password or badge + PIN. Unknown accounts, wrong secrets and inactive people
- * all answer 'invalid' after the same amount of work; too many failures answer 'throttled'.
+ * Checks an e-mail + password or badge + PIN. Unknown accounts, wrong secrets, inactive people and
+ * agency staff past their contract's end all answer 'invalid' after the same amount of work; too
+ * many failures answer 'throttled' without checking the secret at all.
  */
 export async function attemptSignIn(
 	method: SignInMethod,
@@ -23,13 +25,6 @@ export async function attemptSignIn(
 	address: string
 ): Promise<SignInResult> {
 	const account = `${method}:${identifier.trim().toLowerCase()}`;
-	if (await isThrottled(account, address)) {
-		await recordAuditNow(
-			{ id: null, label: identifier, address },
-			{ action: 'auth.signin_throttled', entityType: 'person', reason: method }
-		);
-		return { ok: false, reason: 'throttled' };
-	}
 	const column = method === 'password' ? people.email : people.badgeNo;
 	const [person] = await db
 		.select({
@@ -37,28 +32,38 @@ export async function attemptSignIn(
 			displayName: people.displayName,
 			active: people.active,
 			sessionVersion: people.sessionVersion,
+			contractEndsOn: people.contractEndsOn,
+			timeZone: sites.timeZone,
 			passwordHash: people.passwordHash,
 			pinHash: people.pinHash
 		})
 		.from(people)
+		.leftJoin(sites, eq(sites.id, people.siteId))
 		.where(eq(column, identifier.trim()))
 		.limit(1);
-	const stored = method === 'password' ? person?.passwordHash : person?.pinHash;
-	const good = await verifySecret(person?.active ? stored : null, secret);
-	if (!person || !good) {
-		await recordSignInFailure(account, address);
+	const refuse = async (reason: 'invalid' | 'throttled'): Promise<SignInResult> => {
 		await recordAuditNow(
 			{ id: null, label: identifier, address },
 			{
-				action: 'auth.signin_failed',
+				action: reason === 'throttled' ? 'auth.signin_throttled' : 'auth.signin_failed',
 				entityType: 'person',
 				entityId: person?.id ?? null,
 				reason: method
 			}
 		);
-		return { ok: false, reason: 'invalid' };
+		return { ok: false, reason };
+	};
+	const attempt = await beginSignInTry(account, address, person?.id ?? null);
+	if (attempt.throttled) return refuse('throttled');
+	const stored = method === 'password' ? person?.passwordHash : person?.pinHash;
+	const usable =
+		person?.active && !hasContractEnded(person.contractEndsOn, person.timeZone ?? 'UTC');
+	const good = await verifySecret(usable ? stored : null, secret);
+	if (!person || !good) {
+		await trimOldFailures();
+		return refuse('invalid');
 	}
-	await clearAccountFailures(account);
+	await settleSuccessfulTry(account, attempt);
 	const sessionId = await openSession(person.id, person.sessionVersion, method, address);
 	await recordAuditNow(
 		{ id: person.id, label: person.displayName, address },

@@ -75,22 +75,31 @@ export async function getPerson(id: number) {
 	};
 }
 
-function duplicateField(err: unknown): string | null {
-	const msg = err instanceof Error ? err.message : '';
-	const cause = (err as { cause?: { code?: string; message?: string } })?.cause;
-	const text = `${msg} ${cause?.message ?? ''}`;
-	if (!/Duplicate entry/.test(text)) return null;
-	if (/employee_no/.test(text)) return 'employeeNo';
-	if (/email/.test(text)) return 'email';
-	if (/badge_no/.test(text)) return 'badgeNo';
-	return 'employeeNo';
-}
-
 const FIELD_LABEL: Record<string, string> = {
 	employeeNo: 'employee number',
 	email: 'e-mail address',
 	badgeNo: 'badge number'
 };
+
+/** A refused write the person form can show on one of its fields. */
+function fieldConflict(err: unknown): ConflictError | null {
+	const msg = err instanceof Error ? err.message : '';
+	const cause = (err as { cause?: { code?: string; message?: string } })?.cause;
+	const text = `${msg} ${cause?.message ?? ''}`;
+	if (/Duplicate entry/.test(text)) {
+		// Judge by the unique key's name (people_badgeNo_unique, ...), not by the duplicated value.
+		const key = /for key '([^']+)'/.exec(text)?.[1] ?? '';
+		const field = /email/i.test(key) ? 'email' : /badge_?no/i.test(key) ? 'badgeNo' : 'employeeNo';
+		return new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
+	}
+	// The chosen line or shift was removed after the form was loaded (or the post was hand-made).
+	if (cause?.code === 'ER_NO_REFERENCED_ROW_2') {
+		if (/people_line_id/.test(text)) return new ConflictError('lineId', 'That line does not exist');
+		if (/people_shift_id/.test(text))
+			return new ConflictError('shiftId', 'That shift does not exist');
+	}
+	return null;
+}
 
 function record(input: PersonInput) {
 	return {
@@ -123,14 +132,14 @@ export async function createPerson(actor: Actor, input: PersonInput, siteId: num
 			return id;
 		});
 	} catch (err) {
-		const field = duplicateField(err);
-		if (field)
-			throw new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
-		throw err;
+		throw fieldConflict(err) ?? err;
 	}
 }
 
-/** Saves changes; a change of roles ends the person's open sessions. */
+/**
+ * Saves changes. Roles are re-read on every request, so a removed role stops working on the
+ * person's next request without signing them out.
+ */
 export async function updatePerson(actor: Actor, id: number, input: PersonInput) {
 	try {
 		await db.transaction(async (tx) => {
@@ -145,13 +154,7 @@ export async function updatePerson(actor: Actor, id: number, input: PersonInput)
 			const next = record(input);
 			const rolesChanged =
 				oldRoles.length !== input.roles.length || oldRoles.some((r) => !input.roles.includes(r));
-			await tx
-				.update(people)
-				.set({
-					...next,
-					sessionVersion: rolesChanged ? old.sessionVersion + 1 : old.sessionVersion
-				})
-				.where(eq(people.id, id));
+			await tx.update(people).set(next).where(eq(people.id, id));
 			if (rolesChanged) {
 				await tx.delete(roleAssignments).where(eq(roleAssignments.personId, id));
 				await tx
@@ -179,10 +182,7 @@ export async function updatePerson(actor: Actor, id: number, input: PersonInput)
 			});
 		});
 	} catch (err) {
-		const field = duplicateField(err);
-		if (field)
-			throw new ConflictError(field, `Another person already has this ${FIELD_LABEL[field]}`);
-		throw err;
+		throw fieldConflict(err) ?? err;
 	}
 }
 

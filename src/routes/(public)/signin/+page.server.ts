@@ -1,7 +1,7 @@
-import { fail, isRedirect, redirect } from '@sveltejs/kit';
+import { fail, redirect } from '@sveltejs/kit';
 import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { signIn, withForm } from '$lib/server/auth/authjs';
+import { signInWithCredentials } from '$lib/server/auth/authjs';
 import { badgeSignInSchema, passwordSignInSchema } from '$lib/schemas/people';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -29,31 +29,16 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 const FAILED = 'That did not match. Check and try again.';
 const THROTTLED = 'Too many failed tries. Wait 15 minutes, or ask your line lead or an admin.';
 
-/** Runs Auth.js's credentials sign-in and turns its error redirect into a form message. */
-async function authjsSignIn(event: Parameters<Actions[string]>[0], fields: Record<string, string>) {
-	try {
-		await signIn(withForm(event, fields));
-	} catch (err) {
-		if (!isRedirect(err)) throw err;
-		const target = new URL(err.location, event.url);
-		if (target.searchParams.has('error')) {
-			return target.searchParams.get('code') === 'throttled' ? 'throttled' : 'failed';
-		}
-		redirect(303, safeRedirect(fields.redirectTo));
-	}
-	return 'failed';
-}
-
 export const actions: Actions = {
 	password: async (event) => {
 		const form = await superValidate(event.request, zod4(passwordSignInSchema), { id: 'password' });
 		if (!form.valid) return fail(400, { passwordForm: form });
-		const outcome = await authjsSignIn(event, {
+		const outcome = await signInWithCredentials(event, {
 			providerId: 'password',
 			email: form.data.email,
-			password: form.data.password,
-			redirectTo: safeRedirect(form.data.redirectTo)
+			password: form.data.password
 		});
+		if (outcome === 'signed-in') redirect(303, safeRedirect(form.data.redirectTo));
 		form.data.password = '';
 		if (outcome === 'throttled') return message(form, THROTTLED, { status: 429 });
 		setError(form, 'password', FAILED);
@@ -62,12 +47,12 @@ export const actions: Actions = {
 	badge: async (event) => {
 		const form = await superValidate(event.request, zod4(badgeSignInSchema), { id: 'badge' });
 		if (!form.valid) return fail(400, { badgeForm: form });
-		const outcome = await authjsSignIn(event, {
+		const outcome = await signInWithCredentials(event, {
 			providerId: 'badge',
 			badge: form.data.badge,
-			pin: form.data.pin,
-			redirectTo: safeRedirect(form.data.redirectTo)
+			pin: form.data.pin
 		});
+		if (outcome === 'signed-in') redirect(303, safeRedirect(form.data.redirectTo));
 		form.data.pin = '';
 		if (outcome === 'throttled') return message(form, THROTTLED, { status: 429 });
 		setError(form, 'pin', FAILED);

@@ -12,7 +12,7 @@ import {
 
 /**
  * Append-only audit trail. The app's database user holds only INSERT and SELECT on this table
- * (scripts/db.js sets the grants). Each row's hash covers its content and the previous row's hash.
+ * (grantAppUser in scripts/lib.js sets the grants). Each row's hash covers its content and the previous row's hash.
  */
 export const auditEvents = mysqlTable(
 	'audit_events',
