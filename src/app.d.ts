@@ -5,6 +5,8 @@ declare global {
 		interface Error {
 			message: string;
 			id?: string;
+			/** Set on API errors, so JSON clients get { error } like every other API failure. */
+			error?: string;
 		}
 		interface Locals {
 			/** The open session's id (from the JWT), used to revoke it at sign-out. */

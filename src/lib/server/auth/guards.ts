@@ -28,9 +28,11 @@ export function requireRole(event: WithUser, ...roles: Role[]): SessionUser {
 /** For JSON endpoints: 401 instead of a redirect when nobody is signed in. */
 export function requireApiRole(event: WithUser, ...roles: Role[]): SessionUser {
 	const user = event.locals.user;
-	if (!user) error(401, { message: 'Sign in first.' });
+	// API errors carry `error` as well as SvelteKit's `message`, matching the { error, fields } shape.
+	if (!user) error(401, { message: 'Sign in first.', error: 'Sign in first.' });
 	if (roles.length && !roles.some((r) => user.roles.includes(r))) {
-		error(403, { message: `Needs one of the roles: ${roles.join(', ')}.` });
+		const text = `Needs one of the roles: ${roles.join(', ')}.`;
+		error(403, { message: text, error: text });
 	}
 	return user;
 }
