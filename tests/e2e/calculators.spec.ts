@@ -1,6 +1,6 @@
 // Calculator pages in Chromium: live results computed by the registry code, the share link, field
 // errors, a form without JavaScript, the charts, and the API key screen.
-import { expect, test, type Page } from '@playwright/test';
+import { expect, test, type Locator, type Page } from '@playwright/test';
 import { runCalculator } from '../../src/lib/calculators/registry';
 import { formatNumber } from '../../src/lib/calculators/format';
 
@@ -20,7 +20,8 @@ async function signIn(page: Page, email: string, redirectTo: string) {
 }
 
 /** A result on a calculator page, by its label (with the unit, when it has one). */
-const output = (page: Page, name: string) => page.getByRole('status', { name, exact: true });
+const output = (scope: Page | Locator, name: string) =>
+	scope.getByRole('status', { name, exact: true });
 
 /** Force in N as the registry computes it for bump inputs and a pressure. */
 function expectedForceN(bumpCount: number, widthUm: number, lengthUm: number, pressureMPa: number) {
@@ -107,6 +108,20 @@ test.describe('calculators', () => {
 			formatNumber(expectedForceN(1000, 18, 90, 50), 4)
 		);
 		await noScript.close();
+
+		// The calc block for an instruction, mounted from its text as instructions will mount it.
+		await page.getByText('Use in an instruction').click();
+		const block = page.getByLabel('Calculator block for an instruction');
+		await expect(block).toContainText('```calc bond-force');
+		await expect(block).toContainText('pressureMPa: 75');
+		const embedded = page.getByRole('region', { name: 'Calculator: Bond force' });
+		await expect(embedded.getByLabel('Pressure', { exact: true })).toHaveValue('75');
+		await expect(output(embedded, 'Force (N)')).toHaveText(formatNumber(second, 4));
+		await embedded.getByLabel('Pressure', { exact: true }).fill('60');
+		await expect(output(embedded, 'Force (N)')).toHaveText(formatNumber(first, 4));
+		await expect(embedded.getByText('Results are planning figures.')).toBeVisible();
+		await page.getByText('Use in an instruction').click();
+		await expect(embedded).toHaveCount(0);
 
 		// An invalid input shows its error next to the field, and no result.
 		await page.getByLabel('Bump width', { exact: true }).fill('-5');

@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { parseCalcPresets } from './presets';
+import { calcBlockBody, calcBlockFromQuery, parseCalcPresets } from './presets';
+import { calculators } from './registry';
+import { defaultFormValues, formValuesFromPresets, toQuery, type ListRow } from './form-values';
 
 describe('parseCalcPresets', () => {
 	it('reads key: value lines', () => {
@@ -43,5 +45,28 @@ describe('parseCalcPresets', () => {
 		const presets = parseCalcPresets('constructor: 1\ntoString: 2');
 		expect(Object.keys(presets)).toEqual(['constructor', 'toString']);
 		expect(Object.getPrototypeOf(presets)).toBe(Object.prototype);
+	});
+});
+
+describe('calcBlockFromQuery', () => {
+	it('writes a fenced block whose lines read back to the same inputs', () => {
+		const def = calculators['cure-degree'];
+		const values = defaultFormValues(def);
+		values.targetDegree = '0.85';
+		(values.segments as ListRow[])[1].durationS = '20';
+		const block = calcBlockFromQuery(def.id, toQuery(def, values));
+		expect(block.split('\n')[0]).toBe('```calc cure-degree');
+		expect(block.endsWith('\n```')).toBe(true);
+		expect(block).toContain('targetDegree: 0.85');
+		expect(block).toContain('segments.1.durationS: 20');
+		const back = formValuesFromPresets(def, parseCalcPresets(calcBlockBody(block)));
+		expect(back.ignored).toEqual([]);
+		expect(back.values).toEqual(values);
+	});
+
+	it('leaves out the row buttons of the form and is empty for the defaults', () => {
+		const block = calcBlockFromQuery('units', new URLSearchParams('_add=segments'));
+		expect(block).toBe('```calc units\n```');
+		expect(parseCalcPresets(calcBlockBody(block))).toEqual({});
 	});
 });

@@ -24,3 +24,19 @@ export function parseCalcPresets(body: string): Record<string, string> {
 	}
 	return presets;
 }
+
+/**
+ * The fenced block an instruction embeds for these inputs: ```calc <id>, then one `key: value`
+ * line per input that differs from its default (list rows as `list.N.field`).
+ */
+export function calcBlockFromQuery(id: string, params: URLSearchParams): string {
+	const lines = [...params.entries()]
+		.filter(([key]) => !key.startsWith('_'))
+		.map(([key, value]) => `${key}: ${value}`);
+	return ['```calc ' + id, ...lines, '```'].join('\n');
+}
+
+/** The body of a fenced calc block (the lines between the fences). */
+export function calcBlockBody(block: string): string {
+	return block.split('\n').slice(1, -1).join('\n');
+}
