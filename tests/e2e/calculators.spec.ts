@@ -136,7 +136,9 @@ test.describe('calculators', () => {
 		await expect(page.getByLabel('Bump width', { exact: true })).toHaveValue('-5');
 	});
 
-	test('charts: cure curve with an added segment, particle bars, pitch error', async ({ page }) => {
+	test('charts: cure curve with an added segment, particle bars, pitch error; unit selects', async ({
+		page
+	}) => {
 		await signIn(page, 'trainer@kbo2.example', '/calculators/cure-degree');
 		const chart = page.getByRole('img', { name: 'Degree of cure against time' });
 		await expect(chart).toBeVisible();
@@ -158,6 +160,16 @@ test.describe('calculators', () => {
 		).toBeVisible();
 		await page.getByRole('button', { name: /Soda-lime glass/ }).click();
 		await expect(page.getByLabel('Glass expansion coefficient', { exact: true })).toHaveValue('9');
+
+		// Units: choosing another quantity moves both unit selects to units of that quantity.
+		await page.goto('/calculators/units');
+		await page.getByLabel('Quantity').selectOption('force');
+		await expect(page.getByLabel('From unit')).toHaveValue('N');
+		await expect(page.getByLabel('To unit')).toHaveValue('kgf');
+		await page.getByLabel('To unit').selectOption('lbf');
+		await page.getByLabel('Value', { exact: true }).fill('4.4482216152605');
+		// 1 lbf = 4.4482216152605 N exactly (NIST SP 811)
+		await expect(output(page, 'Converted value (lbf)')).toHaveText('1');
 	});
 
 	test('an unknown calculator is a 404', async ({ page }) => {
