@@ -26,7 +26,7 @@ const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 const apiOrigin: Handle = async ({ event, resolve }) => {
 	const { request, url } = event;
 	if (url.pathname.startsWith('/api/') && UNSAFE.has(request.method)) {
-		const usesKey = request.headers.get('authorization')?.startsWith('Bearer ');
+		const usesKey = /^bearer /i.test(request.headers.get('authorization') ?? '');
 		if (!usesKey) {
 			const origin = request.headers.get('origin');
 			const site = request.headers.get('sec-fetch-site');

@@ -114,3 +114,11 @@ export function signInMessage(html: string): string | null {
 	const m = /Not signed in<\/p>\s*<div[^>]*>(?:<!---->)?([^<]*)/.exec(html);
 	return m ? m[1].trim() : null;
 }
+
+/** Signs in with e-mail and password and returns just the `authjs.session-token=...` cookie pair. */
+export async function sessionCookie(email: string, password: string): Promise<string> {
+	const client = await signInWithPassword(email, password);
+	const value = client.cookies.get(SESSION_COOKIE);
+	if (!value) throw new Error(`Sign-in as ${email} gave no session cookie`);
+	return `${SESSION_COOKIE}=${value}`;
+}

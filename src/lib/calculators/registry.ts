@@ -43,6 +43,7 @@ import {
 	type PitchCompensationOutput
 } from './pitch-compensation';
 import { computeUnits, unitsInputs, unitsSchema, type UnitsOutput } from './units';
+import { calculatorIds, isCalculatorId, type CalculatorId } from './ids';
 
 export type {
 	InputDef,
@@ -52,21 +53,7 @@ export type {
 	SelectOption
 } from './fields';
 
-export const calculatorIds = [
-	'bond-force',
-	'particle-capture',
-	'bridge-risk',
-	'cure-degree',
-	'pitch-compensation',
-	'head-offset',
-	'units'
-] as const;
-
-export type CalculatorId = (typeof calculatorIds)[number];
-
-export function isCalculatorId(value: unknown): value is CalculatorId {
-	return typeof value === 'string' && (calculatorIds as readonly string[]).includes(value);
-}
+export { calculatorIds, isCalculatorId, type CalculatorId };
 
 /** Shown on every calculator page and embedded calculator block. */
 export const CALCULATOR_CAUTION =
@@ -107,6 +94,8 @@ export interface CalculatorDef<I extends CalculatorId = CalculatorId> {
 	outputs: readonly OutputDef[];
 	method: string;
 	sources: readonly SourceDef[];
+	/** Cautions for the work the figures are used for (hot heads, pinch points); may be empty. */
+	safety: readonly string[];
 }
 
 interface Engine<I extends CalculatorId> {
@@ -119,6 +108,14 @@ const NIST_SP_811: SourceDef = {
 		'Guide for the Use of the International System of Units (SI), NIST Special Publication 811, 2008 edition, Appendix B.8 and B.9',
 	note: 'Exact conversion factors for kgf, gf, lbf, psi, bar and inch.'
 };
+
+// The usual shop-floor cautions, repeated where a calculator's figures lead to work at the bonder.
+const HOT_HEAD =
+	'The bond head and stage run at 150–300 °C: do not touch them, and let them cool (or use heat-resistant gloves as the plant rules say) before changing buffer sheets, tools or thermocouples.';
+const PINCH_POINT =
+	'Pinch point under the pneumatic head: keep hands clear while it moves, and never defeat the guards or the two-hand control.';
+const PTFE_FUMES =
+	'An overheated PTFE buffer sheet gives off harmful fumes: keep to its rated temperature and keep the local exhaust running.';
 
 const numberOutput = (name: string, label: string, unit: string, digits: number, help?: string) =>
 	({ name, label, unit, digits, kind: 'number', help }) satisfies OutputDef;
@@ -154,6 +151,11 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				note: 'A published COG optimum of 800 kgf/cm² (78.4532 MPa), used as a check value.'
 			},
 			NIST_SP_811
+		],
+		safety: [
+			PINCH_POINT,
+			'Set a new cylinder pressure only as the bonder manual describes: the head moves with the new force at once.',
+			HOT_HEAD
 		]
 	},
 	'particle-capture': {
@@ -187,7 +189,8 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				citation: 'Lin, Chang and Fang (2006), Microelectronics Journal',
 				note: 'Cited with the 2005 paper for the probability of particle capture on bumps.'
 			}
-		]
+		],
+		safety: []
 	},
 	'bridge-risk': {
 		id: 'bridge-risk',
@@ -215,7 +218,8 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 					'Lin, Su and Chang (2005), IEEE Transactions on Device and Materials Reliability 5(2), 255–261',
 				note: 'A published probability model of ACF joint failures, whose box-model spirit this follows.'
 			}
-		]
+		],
+		safety: []
 	},
 	'cure-degree': {
 		id: 'cure-degree',
@@ -254,7 +258,8 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				citation: 'CODATA 2018 recommended values',
 				note: 'Molar gas constant R = 8.314462618 J/(mol·K), exact.'
 			}
-		]
+		],
+		safety: [HOT_HEAD, PTFE_FUMES]
 	},
 	'pitch-compensation': {
 		id: 'pitch-compensation',
@@ -276,7 +281,8 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				citation: 'Linear thermal expansion, L = L₀ (1 + α ΔT) (textbook physics)',
 				note: "The CTE presets are handbook values from memory, except polyimide (a common PI film's data sheet)."
 			}
-		]
+		],
+		safety: []
 	},
 	'head-offset': {
 		id: 'head-offset',
@@ -298,6 +304,11 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				citation: 'Ordinary least squares and the first-order step response (textbook)',
 				note: 'No published process values are involved; the calibration data are your own.'
 			}
+		],
+		safety: [
+			HOT_HEAD,
+			PINCH_POINT,
+			'Place and remove the thermocouple only with the head raised and locked as the plant rules require.'
 		]
 	},
 	units: {
@@ -315,7 +326,8 @@ export const calculators: { [I in CalculatorId]: CalculatorDef<I> } = {
 				citation: '3rd CGPM (1901)',
 				note: 'Standard acceleration of gravity 9.80665 m/s², which fixes the kilogram-force.'
 			}
-		]
+		],
+		safety: []
 	}
 };
 
