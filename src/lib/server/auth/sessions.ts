@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto';
 import { and, eq, gt, isNull, sql } from 'drizzle-orm';
 import { db } from '../db';
-import { authSessions, people, roleAssignments, sites } from '../db/schema';
+import { authSessions, people, sites } from '../db/schema';
 import { ROLES, type Role } from '../../roles';
 import { config } from '../config';
 import { hasContractEnded } from '../../employment';
@@ -54,7 +54,7 @@ export async function loadSessionUser(sessionId: string): Promise<SessionUser | 
 			timeZone: sites.timeZone,
 			roles: sql<
 				string | null
-			>`(select group_concat(${roleAssignments.role}) from ${roleAssignments} where ${roleAssignments.personId} = ${people.id})`
+			>`(select group_concat(ra.role order by ra.role) from role_assignments ra where ra.person_id = people.id)`
 		})
 		.from(authSessions)
 		.innerJoin(people, eq(people.id, authSessions.personId))

@@ -32,7 +32,7 @@ export async function listPeople() {
 			shift: shifts.code,
 			roles: sql<
 				string | null
-			>`(select group_concat(${roleAssignments.role} order by ${roleAssignments.role}) from ${roleAssignments} where ${roleAssignments.personId} = ${people.id})`
+			>`(select group_concat(ra.role order by ra.role) from role_assignments ra where ra.person_id = people.id)`
 		})
 		.from(people)
 		.leftJoin(lines, eq(lines.id, people.lineId))
