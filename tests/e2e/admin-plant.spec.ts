@@ -59,11 +59,22 @@ test('admin adds a line and a station with two processes and finds them on the p
 	await expect(needs).toContainText('FOG-MB');
 	await expect(line).toContainText('3 qualified wanted per shift');
 
-	// Out of the way of other tests: deactivate the station again (kept as history).
+	// Out of the way of other tests: deactivate station and line again (both kept as history).
 	await line.getByRole('link', { name: `${LINE}-FOG-01` }).click();
 	await page.getByLabel('Reason (kept in the audit trail)').fill('end-to-end test finished');
 	await page.getByRole('button', { name: 'Deactivate' }).click();
 	await expect(page.getByRole('heading', { name: 'Reactivate this station' })).toBeVisible();
+	await page.goto('/admin/plant');
+	await page
+		.getByRole('region', { name: new RegExp(`^${LINE}`) })
+		.getByRole('link', { name: 'Edit line' })
+		.click();
+	await page.getByLabel('Reason (kept in the audit trail)').fill('end-to-end test finished');
+	await page.getByRole('button', { name: 'Deactivate' }).click();
+	await expect(page.getByRole('heading', { name: 'Reactivate this line' })).toBeVisible();
+	await page.goto('/admin/plant');
+	await expect(page.getByRole('region', { name: new RegExp(`^${LINE}`) })).toHaveCount(0);
+	await expect(page.getByRole('link', { name: LINE, exact: true })).toBeVisible();
 });
 
 test('a bad station code gets a field error and keeps what was typed', async ({ page }) => {
@@ -134,7 +145,7 @@ test('quality filters the audit trail by action and verifies the chain', async (
 	// The old → new values open per row.
 	await rows
 		.first()
-		.getByText(/values?$/)
+		.getByText(/(values?|changed)$/)
 		.click();
 	await expect(rows.first().getByRole('table')).toContainText('processes');
 

@@ -6,7 +6,7 @@ import { and, desc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { db, pool } from '../../src/lib/server/db';
 import { auditEvents, people } from '../../src/lib/server/db/schema';
-import type { Actor } from '../../src/lib/server/audit';
+import { listAuditEvents, type Actor } from '../../src/lib/server/audit';
 import { exportAuditCsv } from '../../src/lib/server/audit/export';
 import { createPerson, setPersonActive } from '../../src/lib/server/people';
 import { createLine, setPlantActive } from '../../src/lib/server/plant';
@@ -173,6 +173,25 @@ describe('exportAuditCsv', () => {
 			filter: { q: LINE, action: 'line.deactivate' },
 			rows: 3
 		});
+	});
+});
+
+describe('listAuditEvents', () => {
+	it('filters by entity, actor and a case-blind search in the values, newest first', async () => {
+		const byEntity = await listAuditEvents({ entityType: 'line', entityId: String(lineId) });
+		expect(byEntity.total).toBe(1 + EVIL_REASONS.length);
+		expect(byEntity.rows.map((r) => r.seq)).toEqual(
+			[...byEntity.rows.map((r) => r.seq)].sort((a, b) => b - a)
+		);
+		// The line's name only appears inside the JSON values; the search ignores case there too.
+		const byValue = await listAuditEvents({ q: '@LINE NAME', entityId: String(lineId) });
+		expect(byValue.rows.map((r) => r.action)).toEqual(['line.create']);
+		const byActor = await listAuditEvents({ actorId: evil.id!, pageSize: 3, page: 2 });
+		expect(byActor.total).toBe(1 + EVIL_REASONS.length);
+		expect(byActor.rows).toHaveLength(3);
+		expect(byActor.rows.every((r) => r.actorLabel === EVIL_NAME)).toBe(true);
+		const none = await listAuditEvents({ entityId: String(lineId), before: new Date(0) });
+		expect(none.total).toBe(0);
 	});
 });
 

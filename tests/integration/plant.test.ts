@@ -1,6 +1,6 @@
 // The plant's server functions against the real MariaDB: every change audited in the same
 // transaction, duplicates refused as ConflictError, nothing deleted.
-import { and, count, desc, eq, gt } from 'drizzle-orm';
+import { and, count, desc, eq, gt, like } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { db, pool } from '../../src/lib/server/db';
 import {
@@ -22,6 +22,9 @@ import {
 	createShift,
 	createStation,
 	getStation,
+	listLines,
+	listProcesses,
+	listShifts,
 	listStations,
 	plantMap,
 	setPlantActive,
@@ -66,6 +69,11 @@ afterAll(async () => {
 	// Out of the way of other tests: the test line stays only as history.
 	const [line] = await db.select({ id: lines.id }).from(lines).where(eq(lines.code, LINE));
 	if (line) await setPlantActive(actor, 'line', line.id, false, 'plant test finished');
+	const mine = await db
+		.select({ id: processes.id })
+		.from(processes)
+		.where(like(processes.code, `%-${RUN}`));
+	for (const p of mine) await setPlantActive(actor, 'process', p.id, false, 'plant test finished');
 	await pool.end();
 });
 
@@ -104,6 +112,21 @@ describe('lines', () => {
 		expect((await lastAudit('line', id)).action).toBe('line.reactivate');
 	});
 
+	it('counts each line’s stations and active people', async () => {
+		const listed = await listLines(siteId);
+		expect(listed.length).toBeGreaterThanOrEqual(2);
+		for (const l of listed) {
+			const [s] = await db.select({ n: count() }).from(stations).where(eq(stations.lineId, l.id));
+			const [p] = await db
+				.select({ n: count() })
+				.from(people)
+				.where(and(eq(people.lineId, l.id), eq(people.active, true)));
+			expect([l.code, l.stationCount, l.peopleCount]).toEqual([l.code, s.n, p.n]);
+		}
+		// The demo plant has people on both lines, so a count of zero everywhere would be a bug.
+		expect(listed.filter((l) => l.peopleCount > 0).length).toBeGreaterThanOrEqual(2);
+	});
+
 	it('refuses a second line with the same code in the site as a ConflictError on code', async () => {
 		const err = await createLine(actor, { code: LINE, name: 'Copy' }, siteId).catch((e) => e);
 		expect(err).toBeInstanceOf(ConflictError);
@@ -133,6 +156,18 @@ describe('shifts', () => {
 			siteId
 		).catch((e) => e);
 		expect(dup).toBeInstanceOf(ConflictError);
+		// Shifts cannot be deactivated; nobody works this one, so the test removes it again.
+		await db.delete(shifts).where(eq(shifts.id, id));
+	});
+
+	it('counts each shift’s active people', async () => {
+		for (const s of await listShifts(siteId)) {
+			const [p] = await db
+				.select({ n: count() })
+				.from(people)
+				.where(and(eq(people.shiftId, s.id), eq(people.active, true)));
+			expect([s.code, s.peopleCount]).toEqual([s.code, p.n]);
+		}
 	});
 });
 
@@ -206,6 +241,9 @@ describe('processes and stations', () => {
 		});
 		const listed = (await listStations(siteId)).find((s) => s.id === id);
 		expect(listed?.processes).toEqual([`COF-${RUN}`, `LAM-${RUN}`]);
+		const counts = await listProcesses();
+		expect(counts.find((p) => p.id === pBond)?.stationCount).toBe(1);
+		expect(counts.find((p) => p.id === pInsp)?.stationCount).toBe(0);
 		const map = await plantMap(siteId);
 		const onMap = map.lines.find((l) => l.id === lineId)?.stations.find((s) => s.id === id);
 		// The map orders processes as work flows: lamination (ACF) before bonding (COF).

@@ -17,7 +17,7 @@ export const auditFilterSchema = z
 			.default(''),
 		from: optionalDate,
 		to: optionalDate,
-		page: z.coerce.number().int().min(1).max(1_000_000).default(1)
+		page: z.coerce.number().int().min(1).max(1_000_000).catch(1).default(1)
 	})
 	.refine((f) => !f.from || !f.to || f.from <= f.to, {
 		path: ['to'],

@@ -1,4 +1,4 @@
-import { and, asc, eq, sql } from 'drizzle-orm';
+import { and, asc, countDistinct, eq } from 'drizzle-orm';
 import { db } from '../db';
 import { lines, people, stations } from '../db/schema';
 import type { Actor } from '../audit';
@@ -8,17 +8,22 @@ import { createAudited, resolveSiteId, updateAudited } from './common';
 /** The site's lines with how many stations and active people each has. */
 export async function listLines(siteId: number | null) {
 	const site = await resolveSiteId(siteId);
+	// Joins rather than correlated subqueries: drizzle leaves the columns of a single-table select
+	// unqualified, and an unqualified `id` inside a subquery binds to the subquery's own table.
 	const rows = await db
 		.select({
 			id: lines.id,
 			code: lines.code,
 			name: lines.name,
 			active: lines.active,
-			stationCount: sql<number>`(select count(*) from ${stations} where ${stations.lineId} = ${lines.id})`,
-			peopleCount: sql<number>`(select count(*) from ${people} where ${people.lineId} = ${lines.id} and ${people.active})`
+			stationCount: countDistinct(stations.id),
+			peopleCount: countDistinct(people.id)
 		})
 		.from(lines)
+		.leftJoin(stations, eq(stations.lineId, lines.id))
+		.leftJoin(people, and(eq(people.lineId, lines.id), eq(people.active, true)))
 		.where(eq(lines.siteId, site))
+		.groupBy(lines.id)
 		.orderBy(asc(lines.code));
 	return rows.map((r) => ({
 		...r,

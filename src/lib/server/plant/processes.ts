@@ -1,4 +1,4 @@
-import { asc, eq, sql } from 'drizzle-orm';
+import { asc, count, eq } from 'drizzle-orm';
 import { db } from '../db';
 import { processes, stationProcesses } from '../db/schema';
 import type { Actor } from '../audit';
@@ -19,9 +19,11 @@ export async function listProcesses() {
 	const rows = await db
 		.select({
 			...processFields,
-			stationCount: sql<number>`(select count(*) from ${stationProcesses} where ${stationProcesses.processId} = ${processes.id})`
+			stationCount: count(stationProcesses.stationId)
 		})
 		.from(processes)
+		.leftJoin(stationProcesses, eq(stationProcesses.processId, processes.id))
+		.groupBy(processes.id)
 		.orderBy(asc(processes.code));
 	return rows.map((r) => ({ ...r, stationCount: Number(r.stationCount) }));
 }

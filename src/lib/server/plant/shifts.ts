@@ -1,4 +1,4 @@
-import { and, asc, eq, sql } from 'drizzle-orm';
+import { and, asc, count, eq } from 'drizzle-orm';
 import { db } from '../db';
 import { people, shifts } from '../db/schema';
 import type { Actor } from '../audit';
@@ -19,10 +19,12 @@ export async function listShifts(siteId: number | null) {
 	const rows = await db
 		.select({
 			...shiftFields,
-			peopleCount: sql<number>`(select count(*) from ${people} where ${people.shiftId} = ${shifts.id} and ${people.active})`
+			peopleCount: count(people.id)
 		})
 		.from(shifts)
+		.leftJoin(people, and(eq(people.shiftId, shifts.id), eq(people.active, true)))
 		.where(eq(shifts.siteId, site))
+		.groupBy(shifts.id)
 		.orderBy(asc(shifts.startsAt));
 	return rows.map((r) => ({ ...r, peopleCount: Number(r.peopleCount) }));
 }
