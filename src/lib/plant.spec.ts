@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { STATION_CODE, shiftCrossesMidnight, shiftLengthMinutes, stationCodeLine } from './plant';
-import { stationSchema } from './schemas/plant';
+import { shiftSchema, stationSchema } from './schemas/plant';
 
 // Shift arithmetic: plain clock arithmetic on a 24-hour day (common practice, no source).
 describe('shifts', () => {
@@ -38,5 +38,27 @@ describe('station codes', () => {
 		expect(r.success).toBe(false);
 		const fields = r.error!.issues.map((i) => i.path.join('.'));
 		expect(fields).toEqual(expect.arrayContaining(['lineId', 'name', 'processIds']));
+	});
+});
+
+describe('shift times', () => {
+	it('take H:MM and HH:MM on the 24-hour clock and store HH:MM', () => {
+		const ok = shiftSchema.safeParse({
+			code: 'w',
+			name: 'Weekend',
+			startsAt: '7:00',
+			endsAt: '19:00'
+		});
+		expect(ok.success && [ok.data.code, ok.data.startsAt, ok.data.endsAt]).toEqual([
+			'W',
+			'07:00',
+			'19:00'
+		]);
+		for (const bad of ['24:00', '7 pm', '07:60', '0700']) {
+			const r = shiftSchema.safeParse({ code: 'W', name: 'x', startsAt: bad, endsAt: '19:00' });
+			expect(r.success, bad).toBe(false);
+		}
+		const same = shiftSchema.safeParse({ code: 'W', name: 'x', startsAt: '06:00', endsAt: '6:00' });
+		expect(same.success).toBe(false);
 	});
 });

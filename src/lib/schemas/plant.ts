@@ -31,8 +31,13 @@ export const lineSchema = z.object({
 });
 export type LineInput = z.infer<typeof lineSchema>;
 
+// "7:00" is read as 07:00; what is stored is always HH:MM.
 const clock = (label: string) =>
-	z.string().trim().regex(CLOCK_TIME, `${label}: a 24-hour time such as 06:00 or 22:30`);
+	z
+		.string()
+		.trim()
+		.transform((v) => (/^\d:\d\d$/.test(v) ? `0${v}` : v))
+		.pipe(z.string().regex(CLOCK_TIME, `${label}: a 24-hour time such as 06:00 or 22:30`));
 
 export const shiftSchema = z
 	.object({
