@@ -12,11 +12,12 @@ export function localDate(at: Date, timeZone: string): string {
 	return `${get('year')}-${get('month')}-${get('day')}`;
 }
 
-/** "2026-12-01 14:05" in the given zone, with the zone's short name. */
+/** "2026-12-01 14:05" in the given zone, with the zone's short name; seconds on request. */
 export function formatLocal(
 	at: Date | string | null | undefined,
 	timeZone: string,
-	withZone = true
+	withZone = true,
+	withSeconds = false
 ): string {
 	if (!at) return '—';
 	const d = typeof at === 'string' ? new Date(at) : at;
@@ -27,11 +28,12 @@ export function formatLocal(
 		day: '2-digit',
 		hour: '2-digit',
 		minute: '2-digit',
+		second: withSeconds ? '2-digit' : undefined,
 		hourCycle: 'h23',
 		timeZoneName: withZone ? 'short' : undefined
 	}).formatToParts(d);
 	const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '';
-	const base = `${get('year')}-${get('month')}-${get('day')} ${get('hour')}:${get('minute')}`;
+	const base = `${get('year')}-${get('month')}-${get('day')} ${get('hour')}:${get('minute')}${withSeconds ? `:${get('second')}` : ''}`;
 	return withZone ? `${base} ${get('timeZoneName')}` : base;
 }
 

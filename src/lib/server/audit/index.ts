@@ -1,4 +1,19 @@
-import { and, asc, desc, eq, gt, gte, like, lte, or, sql, type SQL } from 'drizzle-orm';
+import {
+	and,
+	asc,
+	desc,
+	eq,
+	gt,
+	gte,
+	isNotNull,
+	isNull,
+	like,
+	lt,
+	lte,
+	or,
+	sql,
+	type SQL
+} from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../db';
 import { auditChain, auditEvents } from '../db/schema';
 import { auditRowHash, canonicalJson, GENESIS_HASH } from './chain';
@@ -121,37 +136,59 @@ export async function verifyAuditChain(conn: DbOrTx = db): Promise<{
 }
 
 export interface AuditFilter {
+	/** Matched against actor, action, entity id, reason and the old and new values. */
 	q?: string;
 	action?: string;
 	entityType?: string;
+	entityId?: string;
 	actorId?: number;
+	/** Only events without a signed-in actor (start-up, seed, machines). */
+	systemActor?: boolean;
 	from?: Date;
+	/** Inclusive upper bound. */
 	to?: Date;
+	/** Exclusive upper bound (the start of the day after a "to" date). */
+	before?: Date;
+	/** Only rows up to this sequence number (a stable end for exports). */
+	upToSeq?: number;
 	page?: number;
 	pageSize?: number;
 }
 
-/** A page of audit events, newest first, for the audit trail screen. */
-export async function listAuditEvents(f: AuditFilter) {
+/** The WHERE condition of a filter, shared by the list, the count and the export. */
+export function auditWhere(f: AuditFilter): SQL | undefined {
 	const where: SQL[] = [];
 	if (f.action) where.push(eq(auditEvents.action, f.action));
 	if (f.entityType) where.push(eq(auditEvents.entityType, f.entityType));
+	if (f.entityId) where.push(eq(auditEvents.entityId, f.entityId));
 	if (f.actorId) where.push(eq(auditEvents.actorId, f.actorId));
+	if (f.systemActor) where.push(isNull(auditEvents.actorId));
 	if (f.from) where.push(gte(auditEvents.at, f.from));
 	if (f.to) where.push(lte(auditEvents.at, f.to));
+	if (f.before) where.push(lt(auditEvents.at, f.before));
+	if (f.upToSeq !== undefined) where.push(lte(auditEvents.seq, f.upToSeq));
 	if (f.q) {
 		const q = `%${f.q.replace(/[%_\\]/g, (c) => '\\' + c)}%`;
+		// JSON columns compare in binary collation; lower-casing both sides makes the search case-blind.
+		const lowered = q.toLowerCase();
 		const m = or(
 			like(auditEvents.actorLabel, q),
 			like(auditEvents.entityId, q),
 			like(auditEvents.reason, q),
-			like(auditEvents.action, q)
+			like(auditEvents.action, q),
+			like(sql`lower(${auditEvents.oldValues})`, lowered),
+			like(sql`lower(${auditEvents.newValues})`, lowered)
 		);
 		if (m) where.push(m);
 	}
+	return where.length ? and(...where) : undefined;
+}
+
+/** A page of audit events, newest first, for the audit trail screen. */
+export async function listAuditEvents(f: AuditFilter) {
 	const pageSize = f.pageSize ?? 50;
 	const page = Math.max(1, f.page ?? 1);
-	const cond = where.length ? and(...where) : undefined;
+	const cond = auditWhere(f);
 	const rows = await db
 		.select()
 		.from(auditEvents)
@@ -168,6 +205,58 @@ export async function listAuditEvents(f: AuditFilter) {
 		.from(auditEvents)
 		.orderBy(asc(auditEvents.action));
 	return { rows, total: Number(total), page, pageSize, actions: actions.map((a) => a.action) };
+}
+
+/** The choices of the filter form: every action, entity type and actor in the trail. */
+export async function listAuditFacets() {
+	const [actions, entityTypes, actors] = await Promise.all([
+		db.selectDistinct({ v: auditEvents.action }).from(auditEvents).orderBy(asc(auditEvents.action)),
+		db
+			.selectDistinct({ v: auditEvents.entityType })
+			.from(auditEvents)
+			.orderBy(asc(auditEvents.entityType)),
+		db
+			.select({ id: auditEvents.actorId, label: sql<string>`max(${auditEvents.actorLabel})` })
+			.from(auditEvents)
+			.where(isNotNull(auditEvents.actorId))
+			.groupBy(auditEvents.actorId)
+	]);
+	return {
+		actions: actions.map((a) => a.v),
+		entityTypes: entityTypes.map((e) => e.v),
+		actors: actors
+			.map((a) => ({ id: Number(a.id), label: a.label }))
+			.sort((a, b) => a.label.localeCompare(b.label))
+	};
+}
+
+/**
+ * The rows of a filter, newest first, in batches (keyset paging on seq), so an export of a long
+ * trail never holds it all in memory.
+ */
+export async function* auditEventBatches(f: AuditFilter, batchSize = 1000) {
+	let below: number | undefined;
+	for (;;) {
+		const cond = auditWhere(f);
+		const rows = await db
+			.select()
+			.from(auditEvents)
+			.where(below === undefined ? cond : and(cond, lt(auditEvents.seq, below)))
+			.orderBy(desc(auditEvents.seq))
+			.limit(batchSize);
+		if (rows.length) yield rows;
+		if (rows.length < batchSize) return;
+		below = rows[rows.length - 1].seq;
+	}
+}
+
+/** How many rows a filter matches and the newest seq among them. */
+export async function countAuditEvents(f: AuditFilter) {
+	const [r] = await db
+		.select({ n: sql<number>`count(*)`, maxSeq: sql<number | null>`max(${auditEvents.seq})` })
+		.from(auditEvents)
+		.where(auditWhere(f));
+	return { rows: Number(r.n), maxSeq: r.maxSeq == null ? 0 : Number(r.maxSeq) };
 }
 
 /** The audit actor for a request: the signed-in person and the client address. */

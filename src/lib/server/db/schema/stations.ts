@@ -10,10 +10,11 @@ import {
 	varchar
 } from 'drizzle-orm/mysql-core';
 import { lines, people } from './people';
+import { BOND_TYPES } from '../../../plant';
 
 const id = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
-export const BOND_TYPES = ['ACF', 'COG', 'FOG', 'FOB', 'COF', 'INSP', 'GEN'] as const;
+export { BOND_TYPES };
 
 export const processes = mysqlTable('processes', {
 	id: bigint({ mode: 'number', unsigned: true }).autoincrement().primaryKey(),

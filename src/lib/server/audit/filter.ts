@@ -1,0 +1,34 @@
+import { zonedToUtc } from '../../time';
+import type { AuditFilterInput } from '../../schemas/audit';
+import type { AuditFilter } from './index';
+
+function nextDay(date: string): string {
+	const d = new Date(`${date}T00:00:00Z`);
+	d.setUTCDate(d.getUTCDate() + 1);
+	return d.toISOString().slice(0, 10);
+}
+
+/**
+ * The database filter for the form's values. Dates are whole days in the plant's zone: "from"
+ * starts at local midnight, "to" includes the whole day (up to the next local midnight).
+ */
+export function auditFilterFrom(input: AuditFilterInput, timeZone: string): AuditFilter {
+	return {
+		q: input.q || undefined,
+		action: input.action || undefined,
+		entityType: input.entityType || undefined,
+		entityId: input.entityId || undefined,
+		actorId: /^\d+$/.test(input.actor) ? Number(input.actor) : undefined,
+		systemActor: input.actor === 'system' || undefined,
+		from: input.from ? zonedToUtc(input.from, '00:00', timeZone) : undefined,
+		before: input.to ? zonedToUtc(nextDay(input.to), '00:00', timeZone) : undefined,
+		page: input.page
+	};
+}
+
+/** The filter as the audit event of an export records it: only what was set, plus the zone. */
+export function describeFilter(input: AuditFilterInput, timeZone: string) {
+	const { page: _page, ...rest } = input;
+	const set = Object.fromEntries(Object.entries(rest).filter(([, v]) => v !== ''));
+	return set.from || set.to ? { ...set, timeZone } : set;
+}

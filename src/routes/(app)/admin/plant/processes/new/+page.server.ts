@@ -1,0 +1,29 @@
+import { fail, redirect } from '@sveltejs/kit';
+import { superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { actorFrom } from '$lib/server/audit';
+import { requireRole } from '$lib/server/auth/guards';
+import { createProcess } from '$lib/server/plant';
+import { fieldFailure } from '$lib/server/plant/forms';
+import { processSchema } from '$lib/schemas/plant';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'admin');
+	return { form: await superValidate(zod4(processSchema)) };
+};
+
+export const actions: Actions = {
+	save: async (event) => {
+		requireRole(event, 'admin');
+		const form = await superValidate(event.request, zod4(processSchema));
+		if (!form.valid) return fail(400, { form });
+		let id: number;
+		try {
+			id = await createProcess(actorFrom(event), form.data);
+		} catch (err) {
+			return fieldFailure(form, err);
+		}
+		redirect(303, `/admin/plant/processes/${id}?created=1`);
+	}
+};
