@@ -14,6 +14,7 @@ import {
 } from '../db/schema';
 import { recordAudit, recordAuditNow, type Actor } from '../audit';
 import { copyObject } from '../storage';
+import { invalidateSearchIndex } from '../search';
 import {
 	letterToNumber,
 	nextRevisionLetter,
@@ -431,7 +432,7 @@ export async function signRevision(
 		label: `${r.docNumber} rev ${r.letter}`
 	});
 
-	return db.transaction(async (tx) => {
+	const signed = await db.transaction(async (tx) => {
 		const locked = await lockRevision(tx, revisionId);
 		if (locked.authorId === actor.id) throw new InstructionError(403, 'You wrote this revision.');
 		const contentHash = computeContentHash(
@@ -489,6 +490,8 @@ export async function signRevision(
 		});
 		return { signatureId: sig.id, effectiveFrom, signedAt, printedName };
 	});
+	if (input.meaning === 'approved') invalidateSearchIndex();
+	return signed;
 }
 
 /** Sends a revision in review back to draft with the reviewer's comments. */
@@ -535,7 +538,7 @@ export async function withdrawInstruction(
 	instructionId: number,
 	reason: string
 ) {
-	return db.transaction(async (tx) => {
+	await db.transaction(async (tx) => {
 		const [i] = await tx
 			.select({ docNumber: instructions.docNumber, withdrawnAt: instructions.withdrawnAt })
 			.from(instructions)
@@ -557,6 +560,7 @@ export async function withdrawInstruction(
 			reason
 		});
 	});
+	invalidateSearchIndex();
 }
 
 /** The newest revision id and letter of an instruction (used by tests and the seed). */
