@@ -33,8 +33,8 @@ export interface SearchHit {
 
 type Doc = { id: number; docNumber: string; title: string; steps: string; body: string };
 
-const FIELDS = ['docNumber', 'title', 'steps', 'body'] as const;
-const WEIGHTS: Record<(typeof FIELDS)[number], number> = {
+type Field = 'docNumber' | 'title' | 'steps' | 'body';
+const WEIGHTS: Record<Field, number> = {
 	docNumber: 8,
 	title: 4,
 	steps: 2,
@@ -256,7 +256,7 @@ export async function searchInstructions(
 	const idx = await freshIndex(now);
 	const results = (scope === 'all' ? idx.all : idx.effective).search(query, { limit: 200 });
 	const score = new Map<number, number>();
-	for (const group of results as { field: (typeof FIELDS)[number]; result: number[] }[]) {
+	for (const group of results as { field: Field; result: number[] }[]) {
 		group.result.forEach((id, rank) => {
 			score.set(id, (score.get(id) ?? 0) + WEIGHTS[group.field] / (1 + rank * 0.05));
 		});
