@@ -1,4 +1,4 @@
-import { diffLines } from 'diff';
+import { diffArrays, diffLines } from 'diff';
 
 export interface DiffRow {
 	left: { n: number; text: string } | null;
@@ -43,4 +43,64 @@ export function diffSourceLines(oldSource: string, newSource: string) {
 		removed: rows.filter((r) => r.change === 'removed' || r.change === 'changed').length
 	};
 	return { rows, stats };
+}
+
+const VOID = new Set([
+	'area',
+	'br',
+	'col',
+	'embed',
+	'hr',
+	'img',
+	'input',
+	'link',
+	'meta',
+	'source',
+	'wbr'
+]);
+
+/** Splits sanitised HTML into its top-level elements (paragraphs, lists, tables, …). */
+export function splitTopLevelBlocks(html: string): string[] {
+	const blocks: string[] = [];
+	let depth = 0;
+	let start = 0;
+	const tag = /<(\/?)([a-zA-Z][\w-]*)[^>]*?(\/?)>/g;
+	for (const m of html.matchAll(tag)) {
+		const [whole, closing, name, selfClosing] = m;
+		const lower = name.toLowerCase();
+		if (closing) depth--;
+		else if (!selfClosing && !VOID.has(lower)) depth++;
+		if (depth === 0) {
+			const end = m.index! + whole.length;
+			const block = html.slice(start, end).trim();
+			if (block) blocks.push(block);
+			start = end;
+		}
+	}
+	const rest = html.slice(start).trim();
+	if (rest) blocks.push(rest);
+	return blocks;
+}
+
+export interface RenderedBlock {
+	html: string;
+	change: 'same' | 'removed' | 'added';
+}
+
+/** Rendered side-by-side: the blocks of each revision, with removed and added blocks marked. */
+export function diffRenderedBlocks(oldHtml: string, newHtml: string) {
+	const parts = diffArrays(splitTopLevelBlocks(oldHtml), splitTopLevelBlocks(newHtml));
+	const left: RenderedBlock[] = [];
+	const right: RenderedBlock[] = [];
+	for (const p of parts) {
+		for (const html of p.value) {
+			if (p.added) right.push({ html, change: 'added' });
+			else if (p.removed) left.push({ html, change: 'removed' });
+			else {
+				left.push({ html, change: 'same' });
+				right.push({ html, change: 'same' });
+			}
+		}
+	}
+	return { left, right };
 }

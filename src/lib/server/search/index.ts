@@ -276,9 +276,6 @@ export async function searchInstructions(
 				e.status === 'effective'
 					? `/instructions/${e.docNumber}`
 					: `/instructions/${e.docNumber}/revisions/${e.letter}`,
-			snippetHtml: makeSnippet(
-				e.steps && terms.some((t) => e.steps.toLowerCase().includes(t)) ? e.steps : e.text,
-				terms
-			)
+			snippetHtml: makeSnippet(e.text, terms)
 		}));
 }

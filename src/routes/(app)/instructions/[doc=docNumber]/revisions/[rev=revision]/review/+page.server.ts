@@ -6,6 +6,7 @@ import { requireRole } from '$lib/server/auth/guards';
 import {
 	APPROVER_ROLES,
 	InstructionError,
+	diffRenderedBlocks,
 	diffSourceLines,
 	getRevision,
 	listReviewComments,
@@ -38,6 +39,8 @@ export const load: PageServerLoad = async (event) => {
 	const render = (r: NonNullable<typeof base>) =>
 		renderRevision(instruction.docNumber, r.letter, r.source, r.files);
 	const diff = diffSourceLines(base?.source ?? '', revision.source);
+	const html = (await render(revision)).html;
+	const baseHtml = base ? (await render(base)).html : '';
 	return {
 		instruction: { docNumber: instruction.docNumber, title: instruction.title },
 		revision: {
@@ -47,11 +50,11 @@ export const load: PageServerLoad = async (event) => {
 			changeSummary: revision.changeSummary,
 			reason: revision.reason,
 			classification: revision.classification,
-			submittedAt: revision.submittedAt,
-			html: (await render(revision)).html
+			submittedAt: revision.submittedAt
 		},
-		base: base ? { letter: base.letter, html: (await render(base)).html } : null,
+		base: base ? { letter: base.letter } : null,
 		diff,
+		rendered: diffRenderedBlocks(baseHtml, html),
 		signatures: await verifyRevisionSignatures(revision.id),
 		comments: await listReviewComments(revision.id),
 		signForm: await superValidate(
