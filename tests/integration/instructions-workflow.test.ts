@@ -6,13 +6,15 @@ import { db } from '../../src/lib/server/db/index';
 import {
 	auditEvents,
 	revisions,
+	searchEpoch,
 	signatureFailures,
 	signatures
 } from '../../src/lib/server/db/schema/index';
 import {
 	createNextRevision,
 	signRevision,
-	submitRevision
+	submitRevision,
+	withdrawInstruction
 } from '../../src/lib/server/instructions/workflow';
 import { InstructionError } from '../../src/lib/server/instructions/errors';
 import { displayStatus } from '../../src/lib/server/instructions/effective';
@@ -143,6 +145,23 @@ describe('effective revision at an instant', () => {
 		const t = new Date('2027-10-31T05:00:00Z');
 		expect(await effectiveLetter(fx.instructionId, new Date(t.getTime() - 1000))).toBe('A');
 		expect(await effectiveLetter(fx.instructionId, t)).toBe('B');
+	});
+
+	it('has nothing in force once withdrawn, and tells other instances', async () => {
+		const fx = await makeInstruction(trainer, quality, [{ source: '# A' }]);
+		const epoch = async () => (await db.select().from(searchEpoch))[0]?.epoch ?? 0;
+		const before = await epoch();
+		expect(await effectiveLetter(fx.instructionId, new Date())).toBe('A');
+		await withdrawInstruction(quality.actor, fx.instructionId, 'Process retired');
+		expect(await effectiveLetter(fx.instructionId, new Date())).toBeNull();
+		expect(await epoch()).toBe(before + 1);
+		const [row] = await db
+			.select({ n: count() })
+			.from(auditEvents)
+			.where(
+				and(eq(auditEvents.action, 'instruction.withdrawn'), eq(auditEvents.entityId, fx.docNumber))
+			);
+		expect(row.n).toBe(1);
 	});
 
 	it('refuses an effective instant in the past', async () => {

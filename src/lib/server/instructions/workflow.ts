@@ -31,12 +31,16 @@ type SignedActor = Actor & { id: number };
 
 const affected = (res: unknown) => (res as [{ affectedRows: number }])[0].affectedRows;
 
-/** Tells every app instance that what is published changed (search re-indexes on it). */
+/**
+ * Tells every app instance that instruction text or states changed (search catches up on it).
+ * Publications must bump it; drafts and reviews bump it too so the drafts-and-archive scope follows.
+ */
 export async function bumpSearchEpoch(tx: Tx) {
 	await tx
 		.insert(searchEpoch)
 		.values({ id: 1, epoch: 1, changedAt: new Date() })
 		.onDuplicateKeyUpdate({ set: { epoch: sql`${searchEpoch.epoch} + 1`, changedAt: new Date() } });
+	invalidateSearchIndex();
 }
 
 export interface NewInstruction {
@@ -78,6 +82,7 @@ export async function createInstruction(actor: SignedActor, input: NewInstructio
 					lastEditedBy: actor.id
 				})
 				.$returningId();
+			await bumpSearchEpoch(tx);
 			await recordAudit(tx, actor, {
 				action: 'instruction.created',
 				entityType: 'instruction',
@@ -153,6 +158,7 @@ export async function createNextRevision(actor: SignedActor, instructionId: numb
 					.set({ contentHash: computeContentHash(source, copied) })
 					.where(eq(revisions.id, id));
 			}
+			await bumpSearchEpoch(tx);
 			await recordAudit(tx, actor, {
 				action: 'revision.created',
 				entityType: 'revision',
@@ -244,6 +250,7 @@ export async function saveDraft(
 				)
 			);
 		if (affected(res) === 1) {
+			await bumpSearchEpoch(tx);
 			await recordAudit(tx, actor, {
 				action: 'revision.draft_saved',
 				entityType: 'revision',
@@ -343,6 +350,7 @@ export async function submitRevision(actor: SignedActor, revisionId: number, inp
 				version: sql`${revisions.version} + 1`
 			})
 			.where(eq(revisions.id, revisionId));
+		await bumpSearchEpoch(tx);
 		await recordAudit(tx, actor, {
 			action: 'revision.submitted',
 			entityType: 'revision',
@@ -507,6 +515,7 @@ export async function rejectRevision(actor: SignedActor, revisionId: number, com
 		await tx
 			.insert(reviewComments)
 			.values({ revisionId, authorId: actor.id, kind: 'rejection', body: comment });
+		await bumpSearchEpoch(tx);
 		await recordAudit(tx, actor, {
 			action: 'revision.rejected',
 			entityType: 'revision',

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { requireUser } from '$lib/server/auth/guards';
 import { canAuthor, listRegister } from '$lib/server/instructions';
+import { localDate } from '$lib/time';
 import type { PageServerLoad } from './$types';
 
 const filterSchema = z.object({
@@ -27,6 +28,7 @@ export const load: PageServerLoad = async (event) => {
 		processes: [...new Set(all.map((r) => r.process).filter((x): x is string => !!x))].sort(),
 		stations: [...new Set(all.flatMap((r) => r.stations))].sort(),
 		canAuthor: canAuthor(user.roles),
+		today: localDate(new Date(), user.timeZone),
 		showStates: user.roles.some((r) => r === 'trainer' || r === 'quality' || r === 'admin')
 	};
 };

@@ -2,8 +2,10 @@ import { fail, redirect } from '@sveltejs/kit';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
 import {
+	APPROVER_ROLES,
 	AUTHOR_ROLES,
 	InstructionError,
+	canApprove,
 	canAuthor,
 	canSeeArchive,
 	createNextRevision,
@@ -12,8 +14,10 @@ import {
 	pageRefusal,
 	renderRevision,
 	resolveEffectiveForViewer,
-	verifyRevisionSignatures
+	verifyRevisionSignatures,
+	withdrawInstruction
 } from '$lib/server/instructions';
+import { withdrawSchema } from '$lib/schemas/instructions';
 import { localDate } from '$lib/time';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -60,6 +64,7 @@ export const load: PageServerLoad = async (event) => {
 				}))
 			: null,
 		canAuthor: canAuthor(user.roles),
+		canWithdraw: canApprove(user.roles) && !instruction.withdrawnAt,
 		printedOn: localDate(now, user.timeZone)
 	};
 };
@@ -76,5 +81,23 @@ export const actions: Actions = {
 			if (err instanceof InstructionError) return fail(err.status, { message: err.message });
 			throw err;
 		}
+	},
+	withdraw: async (event) => {
+		const user = requireRole(event, ...APPROVER_ROLES);
+		const instruction = await findInstruction(event.params.doc);
+		if (!instruction) return fail(404, { message: 'No such instruction' });
+		const parsed = withdrawSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { withdrawError: parsed.error.issues[0].message });
+		try {
+			await withdrawInstruction(
+				{ ...actorFrom(event), id: user.id },
+				instruction.id,
+				parsed.data.reason
+			);
+		} catch (err) {
+			if (err instanceof InstructionError) return fail(err.status, { withdrawError: err.message });
+			throw err;
+		}
+		redirect(303, `/instructions/${instruction.docNumber}`);
 	}
 };
