@@ -15,6 +15,7 @@ import { recordAudit } from '../src/lib/server/audit/index';
 import { hashSecret } from '../src/lib/server/auth/password';
 import type { Role } from '../src/lib/roles';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-accounts.js';
+import { seedInstructions } from './seed-instructions';
 
 const DEMO_PIN = DEMO_ACCOUNTS.find((a) => a.role === 'operator')!.pin!;
 
@@ -278,6 +279,7 @@ async function main() {
 		});
 	});
 	console.log(`demo plant loaded in ${Date.now() - started} ms`);
+	await seedInstructions();
 }
 
 main()

@@ -4,6 +4,7 @@ import { existsSync, openSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import {
+	appEnv,
 	countRows,
 	dbUrls,
 	ensureDatabase,
@@ -62,6 +63,12 @@ export async function startFakes(cfg, { detached = true } = {}) {
 	fail('the local fakes (SMTP catcher, S3 store) did not start');
 }
 
+/** The S3 settings of the app environment, for the seed. */
+function s3Env(cfg) {
+	const e = appEnv(cfg);
+	return Object.fromEntries(Object.entries(e).filter(([k]) => k.startsWith('S3_')));
+}
+
 export async function prepareServices(cfg, { freshDatabase, seed }) {
 	const maria = await startMariadb(cfg);
 	ensureDatabase(cfg, { fresh: freshDatabase });
@@ -69,16 +76,17 @@ export async function prepareServices(cfg, { freshDatabase, seed }) {
 	log('applying migrations');
 	await applyMigrations(urls.owner);
 	grantAppUser(cfg);
+	// The demo data stores pictures in S3, so the fakes come up before the seed.
+	const fakesPid = await startFakes(cfg);
 	if (seed && countRows(cfg, 'people') === 0) {
 		log('loading the demo plant (Kestrel Bay Optronics, KBO-2)');
 		const r = spawnSync(join(root, 'node_modules/.bin/tsx'), [join(root, 'scripts/seed.ts')], {
 			cwd: root,
 			stdio: 'inherit',
-			env: { ...process.env, DATABASE_URL: urls.owner }
+			env: { ...process.env, ...s3Env(cfg), DATABASE_URL: urls.owner }
 		});
 		if (r.status !== 0) fail('loading the demo data failed');
 	}
-	const fakesPid = await startFakes(cfg);
 	return {
 		mariadbPid: maria.pid,
 		mariadbStarted: maria.started,

@@ -10,7 +10,7 @@ export interface NavItem {
 /** The areas of Padbridge; each role sees only what it can use. */
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Home', roles: [] },
-	// instructions: { href: '/instructions', label: 'Instructions', roles: [] },
+	{ href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },

@@ -1,3 +1,4 @@
 export * from './people';
 export * from './stations';
 export * from './audit';
+export * from './instructions';
