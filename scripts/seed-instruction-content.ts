@@ -23,22 +23,22 @@ export interface DemoInstruction {
 }
 
 const RECIPE_NOTE =
-	'> **Note:** values in this instruction are illustrative. The validated recipe loaded on the bonder governs; if they differ, stop and call the process engineer.';
+	':::note\nValues in this instruction are illustrative. The validated recipe loaded on the bonder governs; if they differ, stop and call the process engineer.\n:::';
 
 const HOT_HEAD =
-	'> **Caution — hot head:** the bond head runs at 150–300 °C. Never touch the head, the heater block or the stage; use the tweezers and the heat-resistant glove from the station kit.';
+	':::caution Hot head\nThe bond head runs at 150–300 °C. Never touch the head, the heater block or the stage; use the tweezers and the heat-resistant glove from the station kit.\n:::';
 
 const PINCH =
-	'> **Caution — pinch point:** the pneumatic head closes with up to several hundred newtons. Keep both hands outside the light curtain while the head moves; never reach under a raised head without the safety block in place.';
+	':::warning Pinch point\nThe pneumatic head closes with up to several hundred newtons. Keep both hands outside the light curtain while the head moves; never reach under a raised head without the safety block in place.\n:::';
 
 const IPA =
-	'> **Caution — IPA:** isopropyl alcohol is flammable. Keep it in the labelled dispenser, away from the hot head; no more than the day amount at the station. Wear nitrile gloves; follow the plant safety data sheet and local regulations.';
+	':::caution IPA\nIsopropyl alcohol is flammable. Keep it in the labelled dispenser, away from the hot head; no more than the day amount at the station. Wear nitrile gloves; follow the plant safety data sheet and local regulations.\n:::';
 
 const ESD =
-	'> **Caution — ESD:** driver chips and FPCs are damaged by static discharge you cannot feel. Wrist strap on and tested, heel straps on, parts only on the grounded mat.';
+	':::caution ESD\nDriver chips and FPCs are damaged by static discharge you cannot feel. Wrist strap on and tested, heel straps on, parts only on the grounded mat.\n:::';
 
 const PTFE =
-	'> **Caution — PTFE fumes:** an overheated PTFE buffer sheet gives off fumes that cause flu-like symptoms. Never run the head above the recipe temperature with a PTFE sheet, keep the extraction on, and report any burnt smell.';
+	':::caution PTFE fumes\nAn overheated PTFE buffer sheet gives off fumes that cause flu-like symptoms. Never run the head above the recipe temperature with a PTFE sheet, keep the extraction on, and report any burnt smell.\n:::';
 
 function acfThaw(rev: 'A' | 'B'): string {
 	const thaw = rev === 'A' ? '1 hour' : '2 hours';

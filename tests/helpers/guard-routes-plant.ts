@@ -9,5 +9,5 @@ export const GUARD_ROUTES: GuardRoute[] = [
 	{ method: 'GET', path: '/admin/plant/processes', allowedRoles: ['admin'] },
 	{ method: 'GET', path: '/admin/plant/stations', allowedRoles: ['admin'] },
 	{ method: 'GET', path: '/admin/plant/stations/new', allowedRoles: ['admin'] },
-	{ method: 'GET', path: '/audit', allowedRoles: ['quality', 'admin'] },
+	{ method: 'GET', path: '/audit', allowedRoles: ['quality', 'admin'] }
 ];
