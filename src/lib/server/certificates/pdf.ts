@@ -6,7 +6,7 @@
 // precomposed positions (see shared STACK notes, "Fonts in PDFs").
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
-import { PDFDocument, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
+import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
 import * as fontkitModule from '@pdf-lib/fontkit';
 import type { Font as FontkitFont } from '@pdf-lib/fontkit';
 import subsetFont from 'subset-font';
@@ -335,10 +335,24 @@ function drawQr(page: PDFPage, text: string, x: number, y: number, sizePt: numbe
 	}
 }
 
+type PlacedItem = TextItem & { runs: Run[] };
+
+function createDocument(input: CertificatePdfInput): Promise<PDFDocument> {
+	return PDFDocument.create().then((doc) => {
+		doc.setTitle(`Certificate ${input.number}`);
+		doc.setSubject(`${input.processName} (${input.processCode}) — ${input.holderName}`);
+		doc.setProducer('Padbridge');
+		doc.setCreator('Padbridge');
+		doc.setCreationDate(input.issuer.signedAt);
+		doc.setModificationDate(input.issuer.signedAt);
+		return doc;
+	});
+}
+
 /** Renders one certificate; fonts are cached per process, subset per document. */
 export async function renderCertificatePdf(input: CertificatePdfInput): Promise<Uint8Array> {
 	const fonts = await loadFonts();
-	const items = layoutText(input).map((item) => ({
+	const items: PlacedItem[] = layoutText(input).map((item) => ({
 		...item,
 		runs: splitRuns(item.text, item.weight ?? 'regular', fonts)
 	}));
@@ -346,14 +360,8 @@ export async function renderCertificatePdf(input: CertificatePdfInput): Promise<
 	const usedText: Record<FontKey, string> = { regular: '', bold: '', cjk: '' };
 	for (const item of items) for (const run of item.runs) usedText[run.font] += run.text;
 
-	const doc = await PDFDocument.create();
+	const doc = await createDocument(input);
 	doc.registerFontkit(fontkit as unknown as Parameters<PDFDocument['registerFontkit']>[0]);
-	doc.setTitle(`Certificate ${input.number}`);
-	doc.setSubject(`${input.processName} (${input.processCode}) — ${input.holderName}`);
-	doc.setProducer('Padbridge');
-	doc.setCreator('Padbridge');
-	doc.setCreationDate(input.issuer.signedAt);
-	doc.setModificationDate(input.issuer.signedAt);
 
 	const embedded: Partial<Record<FontKey, PDFFont>> = {};
 	await Promise.all(
@@ -363,13 +371,43 @@ export async function renderCertificatePdf(input: CertificatePdfInput): Promise<
 				const subset = await subsetFont(fonts[key].bytes, usedText[key], {
 					targetFormat: 'truetype'
 				});
+				// liga off as well: a ligature glyph (fi) loses its text in pdftotext's reading.
 				embedded[key] = await doc.embedFont(new Uint8Array(subset), {
 					subset: false,
 					features: { ccmp: false, mark: false, mkmk: false, liga: false }
 				});
 			})
 	);
+	drawPage(doc, input, items, embedded);
+	return doc.save({ useObjectStreams: true });
+}
 
+/**
+ * The benchmark floor: the same page in pdf-lib's built-in Helvetica, no font files, no
+ * subsetting. Only for Latin-1 text (WinAnsi); not for certificates people receive.
+ */
+export async function renderCertificatePdfWithStandardFonts(
+	input: CertificatePdfInput
+): Promise<Uint8Array> {
+	const doc = await createDocument(input);
+	const embedded: Partial<Record<FontKey, PDFFont>> = {
+		regular: await doc.embedFont(StandardFonts.Helvetica),
+		bold: await doc.embedFont(StandardFonts.HelveticaBold)
+	};
+	const items: PlacedItem[] = layoutText(input).map((item) => ({
+		...item,
+		runs: [{ text: item.text, font: item.weight ?? 'regular' }]
+	}));
+	drawPage(doc, input, items, embedded);
+	return doc.save({ useObjectStreams: true });
+}
+
+function drawPage(
+	doc: PDFDocument,
+	input: CertificatePdfInput,
+	items: PlacedItem[],
+	embedded: Partial<Record<FontKey, PDFFont>>
+): void {
 	const page = doc.addPage([PAGE_W, PAGE_H]);
 	page.drawRectangle({ x: 0, y: 0, width: PAGE_W, height: PAGE_H, color: tokenRgb('panel-50') });
 	page.drawRectangle({
@@ -432,6 +470,4 @@ export async function renderCertificatePdf(input: CertificatePdfInput): Promise<
 		borderColor: tokenRgb('film-500'),
 		borderWidth: 1.5
 	});
-
-	return doc.save({ useObjectStreams: true });
 }
