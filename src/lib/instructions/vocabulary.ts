@@ -18,6 +18,14 @@ export const CHANGE_CLASS_LABELS: Record<ChangeClass, string> = {
 export const SIGNATURE_MEANINGS = ['reviewed', 'approved'] as const;
 export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
 
+/** Every meaning the signatures table holds: revision meanings plus the practical sign-off's. */
+export const STORED_SIGNATURE_MEANINGS = [
+	...SIGNATURE_MEANINGS,
+	'observed',
+	'countersigned'
+] as const;
+export type StoredSignatureMeaning = (typeof STORED_SIGNATURE_MEANINGS)[number];
+
 export const SIGNATURE_MEANING_LABELS: Record<SignatureMeaning, string> = {
 	reviewed: 'Reviewed — I have checked this revision',
 	approved: 'Approved — this revision may be put in force'

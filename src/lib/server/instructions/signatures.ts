@@ -5,7 +5,7 @@ import { db, type DbOrTx, type Tx } from '../db';
 import { people, revisions, signatureFailures, signatures } from '../db/schema';
 import { recordAuditNow, type Actor } from '../audit';
 import { verifySecret } from '../auth/password';
-import type { SignatureMeaning } from '../../instructions/vocabulary';
+import type { StoredSignatureMeaning } from '../../instructions/vocabulary';
 import { computeBindingHash, computeContentHash } from './hash';
 import { InstructionError } from './errors';
 import { listRevisionFiles } from './queries';
@@ -83,12 +83,13 @@ export async function insertSignature(
 		recordId: number;
 		signerId: number;
 		printedName: string;
-		meaning: SignatureMeaning;
+		meaning: StoredSignatureMeaning;
 		contentHash: string;
 		signedAt: Date;
+		recordType?: string;
 	}
 ) {
-	const fields = { recordType: SIGNATURE_RECORD_TYPE, ...s };
+	const fields = { ...s, recordType: s.recordType ?? SIGNATURE_RECORD_TYPE };
 	const bindingHash = computeBindingHash(fields);
 	const [{ id }] = await tx
 		.insert(signatures)
@@ -100,7 +101,7 @@ export async function insertSignature(
 export interface VerifiedSignature {
 	id: number;
 	printedName: string;
-	meaning: SignatureMeaning;
+	meaning: StoredSignatureMeaning;
 	signedAt: Date;
 	contentHash: string;
 	valid: boolean;

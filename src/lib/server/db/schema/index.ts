@@ -2,3 +2,5 @@ export * from './people';
 export * from './stations';
 export * from './audit';
 export * from './instructions';
+export * from './training';
+export * from './certificates';

@@ -21,7 +21,7 @@ import {
 	CHANGE_CLASSES,
 	FILE_KINDS,
 	REVISION_STATES,
-	SIGNATURE_MEANINGS
+	STORED_SIGNATURE_MEANINGS
 } from '../../../instructions/vocabulary';
 
 const id = (name: string) => bigint(name, { mode: 'number', unsigned: true });
@@ -133,7 +133,7 @@ export const signatures = mysqlTable(
 			.notNull()
 			.references(() => people.id),
 		printedName: varchar({ length: 200 }).notNull(),
-		meaning: mysqlEnum(SIGNATURE_MEANINGS).notNull(),
+		meaning: mysqlEnum(STORED_SIGNATURE_MEANINGS).notNull(),
 		signedAt: instant().notNull(),
 		contentHash: char({ length: 64 }).notNull(),
 		bindingHash: char({ length: 64 }).notNull()
