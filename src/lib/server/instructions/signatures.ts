@@ -1,69 +1,25 @@
 // Electronic signatures on revisions: re-authentication, controlled meaning, manifestation and a
 // binding to the revision's content hash.
-import { and, asc, count, eq, gte } from 'drizzle-orm';
+import { and, asc, eq } from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../db';
-import { people, revisions, signatureFailures, signatures } from '../db/schema';
-import { recordAuditNow, type Actor } from '../audit';
-import { verifySecret } from '../auth/password';
+import { revisions, signatures } from '../db/schema';
+import type { Actor } from '../audit';
+import { reauthenticate } from '../auth/reauth';
 import type { StoredSignatureMeaning } from '../../instructions/vocabulary';
 import { computeBindingHash, computeContentHash } from './hash';
-import { InstructionError } from './errors';
 import { listRevisionFiles } from './queries';
 
 export const SIGNATURE_RECORD_TYPE = 'revision';
-/** Failures within the window before signing is refused for a while (and an alert is audited). */
-export const SIGNATURE_MAX_FAILURES = 5;
-export const SIGNATURE_ALERT_AT = 3;
-const WINDOW_MS = 15 * 60_000;
-
 /**
- * Checks the signer's own password again. A wrong password is refused, counted and audited;
- * after SIGNATURE_ALERT_AT failures an alert is audited, after SIGNATURE_MAX_FAILURES signing is
- * refused until the window passes.
+ * Checks the signer's own password again (see auth/reauth.ts). Kept under this name because the
+ * revision workflow reads better with it.
  */
 export async function reauthenticateSigner(
 	actor: Actor & { id: number },
 	password: string,
 	entity: { id: number; label: string }
 ): Promise<{ printedName: string }> {
-	const since = new Date(Date.now() - WINDOW_MS);
-	const [{ n }] = await db
-		.select({ n: count() })
-		.from(signatureFailures)
-		.where(and(eq(signatureFailures.personId, actor.id), gte(signatureFailures.at, since)));
-	if (n >= SIGNATURE_MAX_FAILURES) {
-		await recordAuditNow(actor, {
-			action: 'signature.locked',
-			entityType: 'revision',
-			entityId: entity.id,
-			newValues: { failuresInWindow: n, revision: entity.label },
-			reason: 'signing refused after repeated wrong passwords'
-		});
-		throw new InstructionError(
-			429,
-			'Signing is locked after repeated wrong passwords. Wait 15 minutes or ask an admin.'
-		);
-	}
-	const [me] = await db
-		.select({ displayName: people.displayName, passwordHash: people.passwordHash })
-		.from(people)
-		.where(eq(people.id, actor.id));
-	const ok = await verifySecret(me?.passwordHash, password);
-	if (!ok) {
-		await db.insert(signatureFailures).values({ personId: actor.id });
-		const failures = n + 1;
-		await recordAuditNow(actor, {
-			action: failures >= SIGNATURE_ALERT_AT ? 'signature.failures_alert' : 'signature.failed',
-			entityType: 'revision',
-			entityId: entity.id,
-			newValues: { failuresInWindow: failures, revision: entity.label },
-			reason: 'wrong password at signature'
-		});
-		throw new InstructionError(400, 'That password did not match. The signature was not made.', {
-			password: 'Wrong password.'
-		});
-	}
-	return { printedName: me!.displayName };
+	return reauthenticate(actor, password, { type: 'revision', ...entity });
 }
 
 /** The content hash of a revision as it is now in the database (source and files). */
