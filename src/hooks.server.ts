@@ -30,7 +30,10 @@ const apiOrigin: Handle = async ({ event, resolve }) => {
 	const { request, url } = event;
 	if (url.pathname.startsWith('/api/') && UNSAFE.has(request.method)) {
 		const usesKey = /^bearer /i.test(request.headers.get('authorization') ?? '');
-		if (!usesKey) {
+		// Without cookies a request carries no ambient credentials, so there is nothing to forge;
+		// it is left to the endpoint's own 401.
+		const hasCookies = !!request.headers.get('cookie');
+		if (!usesKey && hasCookies) {
 			const origin = request.headers.get('origin');
 			const site = request.headers.get('sec-fetch-site');
 			const sameOrigin = origin ? origin === url.origin : site === 'same-origin';

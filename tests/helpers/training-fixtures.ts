@@ -202,3 +202,50 @@ export async function certificateRows(personId: number, processId: number) {
 		processId
 	]);
 }
+
+/** A station on line L1 requiring the given processes. */
+export async function makeStation(processIds: number[]): Promise<{ id: number; code: string }> {
+	const [line] = await queryRows<{ id: number }>(
+		appDb(),
+		"SELECT id FROM `lines` WHERE code = 'L1'"
+	);
+	const code = `L1-T${tag()}`;
+	const id = await insert(
+		'INSERT INTO stations (line_id, code, name, min_qualified, active) VALUES (?, ?, ?, 2, 1)',
+		[line.id, code, `Test station ${code}`]
+	);
+	for (const p of processIds)
+		await insert('INSERT INTO station_processes (station_id, process_id) VALUES (?, ?)', [id, p]);
+	return { id, code };
+}
+
+/** A certificate row in a given state, without going through evaluation (for gate and board tests). */
+export async function insertCertificate(
+	personId: number,
+	processId: number,
+	ruleId: number,
+	opts: {
+		state?: 'active' | 'retraining_due' | 'expired' | 'suspended' | 'withdrawn' | 'superseded';
+		issuedAt?: Date;
+		expiresAt?: Date;
+		graceUntil?: Date | null;
+	} = {}
+): Promise<number> {
+	const t = tag();
+	return insert(
+		`INSERT INTO certificates (number, person_id, process_id, rule_id, state, issued_at, expires_at,
+		   signer_name, signer_role, verify_token_hash, grace_until)
+		 VALUES (?, ?, ?, ?, ?, ?, ?, 'Fixture signer', 'Quality', SHA2(?, 256), ?)`,
+		[
+			`KBO2-FX-${t}-${personId}-${processId}`,
+			personId,
+			processId,
+			ruleId,
+			opts.state ?? 'active',
+			opts.issuedAt ?? new Date(Date.now() - 30 * 86_400_000),
+			opts.expiresAt ?? new Date(Date.now() + 300 * 86_400_000),
+			`${t}-${personId}-${processId}-${Math.random()}`,
+			opts.graceUntil ?? null
+		]
+	);
+}

@@ -17,6 +17,7 @@ import {
 	withdrawInstruction
 } from '../../src/lib/server/instructions/workflow';
 import { InstructionError } from '../../src/lib/server/instructions/errors';
+import { Refusal } from '../../src/lib/server/errors';
 import { displayStatus } from '../../src/lib/server/instructions/effective';
 import { getRevision, loadEffectiveRevisions } from '../../src/lib/server/instructions/queries';
 import { verifyRevisionSignatures } from '../../src/lib/server/instructions/signatures';
@@ -209,7 +210,7 @@ describe('segregation of duties and the signature ceremony', () => {
 				meaning: 'approved',
 				timeZone: PLANT_ZONE
 			}).catch((e) => e);
-			expect(err).toBeInstanceOf(InstructionError);
+			expect(err).toBeInstanceOf(Refusal);
 			expect(err.status).toBe(400);
 			expect(err.fields?.password).toBeTruthy();
 		}

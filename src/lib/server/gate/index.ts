@@ -191,6 +191,23 @@ async function logDecision(row: typeof gateChecks.$inferInsert): Promise<number 
 	}
 }
 
+/** Logs a deny `unavailable` decided before a check could start (the key could not be verified). */
+export function recordUnavailable(req: GateRequest, now: Date = new Date()) {
+	void logDecision({
+		at: now,
+		stationId: null,
+		stationCode: req.station.slice(0, 64),
+		badge: req.badge.slice(0, 64),
+		personId: null,
+		decision: 'deny',
+		reasons: [{ code: 'unavailable' }],
+		warnings: [],
+		source: req.source,
+		apiKeyId: req.apiKeyId ?? null,
+		latencyMs: 0
+	});
+}
+
 /** Decisions waiting to be logged (the database was unavailable when they were made). */
 export const unloggedGateDecisions = () => unlogged.length;
 

@@ -9,7 +9,8 @@ describe('help pages', () => {
 			'writing-instructions',
 			'calculator-blocks',
 			'safety',
-			'terminals'
+			'terminals',
+			'certification'
 		]);
 		for (const page of pages) {
 			expect(page.title.length).toBeGreaterThan(5);

@@ -1,10 +1,10 @@
+import { Refusal } from '$lib/server/errors';
 import { fail, redirect } from '@sveltejs/kit';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
 import {
 	APPROVER_ROLES,
 	AUTHOR_ROLES,
-	InstructionError,
 	canApprove,
 	canAuthor,
 	canSeeArchive,
@@ -78,7 +78,7 @@ export const actions: Actions = {
 			const r = await createNextRevision({ ...actorFrom(event), id: user.id }, instruction.id);
 			redirect(303, `/instructions/${instruction.docNumber}/revisions/${r.letter}/edit`);
 		} catch (err) {
-			if (err instanceof InstructionError) return fail(err.status, { message: err.message });
+			if (err instanceof Refusal) return fail(err.status, { message: err.message });
 			throw err;
 		}
 	},
@@ -95,7 +95,7 @@ export const actions: Actions = {
 				parsed.data.reason
 			);
 		} catch (err) {
-			if (err instanceof InstructionError) return fail(err.status, { withdrawError: err.message });
+			if (err instanceof Refusal) return fail(err.status, { withdrawError: err.message });
 			throw err;
 		}
 		redirect(303, `/instructions/${instruction.docNumber}`);

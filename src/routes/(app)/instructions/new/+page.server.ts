@@ -1,14 +1,10 @@
+import { Refusal } from '$lib/server/errors';
 import { fail, redirect } from '@sveltejs/kit';
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import {
-	AUTHOR_ROLES,
-	InstructionError,
-	createInstruction,
-	listInstructionChoices
-} from '$lib/server/instructions';
+import { AUTHOR_ROLES, createInstruction, listInstructionChoices } from '$lib/server/instructions';
 import { newInstructionSchema } from '$lib/schemas/instructions';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -43,7 +39,7 @@ export const actions: Actions = {
 				{ ...form.data, source: TEMPLATE }
 			);
 		} catch (err) {
-			if (err instanceof InstructionError && err.fields?.docNumber)
+			if (err instanceof Refusal && err.fields?.docNumber)
 				return setError(form, 'docNumber', err.fields.docNumber, { status: 409 });
 			throw err;
 		}

@@ -1,6 +1,11 @@
 import { json } from '@sveltejs/kit';
 import { verifyApiKey } from '$lib/server/apikeys';
-import { checkStationAccess, findStationByCode, withTimeout } from '$lib/server/gate';
+import {
+	checkStationAccess,
+	findStationByCode,
+	recordUnavailable,
+	withTimeout
+} from '$lib/server/gate';
 import { config } from '$lib/server/config';
 import { fieldErrors, readJson } from '$lib/server/api';
 import { gateCheckSchema } from '$lib/schemas/gate';
@@ -16,6 +21,7 @@ const UNAVAILABLE = {
 
 /** May this badge run this station now? Station API key required; fails closed. */
 export const POST: RequestHandler = async (event) => {
+	const body = await readJson(event.request);
 	let key;
 	try {
 		key = await withTimeout(
@@ -23,6 +29,9 @@ export const POST: RequestHandler = async (event) => {
 			config.gateTimeoutMs
 		);
 	} catch {
+		// Not even the key could be checked: deny, and keep the decision for the log.
+		const asked = body.ok ? gateCheckSchema.safeParse(body.value) : null;
+		if (asked?.success) recordUnavailable({ ...asked.data, source: 'api' });
 		return json(UNAVAILABLE, { status: 503 });
 	}
 	if (!key) {
@@ -31,7 +40,6 @@ export const POST: RequestHandler = async (event) => {
 			{ status: 401, headers: { 'WWW-Authenticate': 'Bearer' } }
 		);
 	}
-	const body = await readJson(event.request);
 	if (!body.ok) return json({ error: body.error }, { status: body.status });
 	const parsed = gateCheckSchema.safeParse(body.value);
 	if (!parsed.success) {
@@ -45,6 +53,7 @@ export const POST: RequestHandler = async (event) => {
 		try {
 			station = await findStationByCode(parsed.data.station);
 		} catch {
+			recordUnavailable({ ...parsed.data, source: 'api', apiKeyId: key.id });
 			return json(UNAVAILABLE, { status: 503 });
 		}
 		if (!station || station.id !== key.stationId) {

@@ -1,3 +1,4 @@
+import { Refusal } from '$lib/server/errors';
 import { fail, redirect } from '@sveltejs/kit';
 import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
@@ -6,7 +7,6 @@ import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import {
 	AUTHOR_ROLES,
-	InstructionError,
 	addRevisionFile,
 	listReviewComments,
 	pageRefusal,
@@ -75,7 +75,7 @@ export const actions: Actions = {
 		try {
 			await saveDraft({ ...actorFrom(event), id: user.id }, revision.id, parsed.data);
 		} catch (err) {
-			if (err instanceof InstructionError)
+			if (err instanceof Refusal)
 				return fail(err.status, {
 					saveError: err.message,
 					mine: parsed.data.source,
@@ -92,7 +92,7 @@ export const actions: Actions = {
 		try {
 			await submitRevision({ ...actorFrom(event), id: user.id }, revision.id, form.data);
 		} catch (err) {
-			if (err instanceof InstructionError)
+			if (err instanceof Refusal)
 				return fail(err.status, { submitForm: form, submitError: err.message });
 			throw err;
 		}
@@ -110,7 +110,7 @@ export const actions: Actions = {
 			});
 			return { uploaded: added.originalName, uploadedKind: added.kind };
 		} catch (err) {
-			if (err instanceof InstructionError) return fail(err.status, { uploadError: err.message });
+			if (err instanceof Refusal) return fail(err.status, { uploadError: err.message });
 			throw err;
 		}
 	},
@@ -125,7 +125,7 @@ export const actions: Actions = {
 				parsed.data.fileId
 			);
 		} catch (err) {
-			if (err instanceof InstructionError) return fail(err.status, { uploadError: err.message });
+			if (err instanceof Refusal) return fail(err.status, { uploadError: err.message });
 			throw err;
 		}
 		return { removed: true };

@@ -1,3 +1,4 @@
+import { Refusal } from '$lib/server/errors';
 import { fail, redirect } from '@sveltejs/kit';
 import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
@@ -5,7 +6,6 @@ import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import {
 	APPROVER_ROLES,
-	InstructionError,
 	diffRenderedBlocks,
 	diffSourceLines,
 	getRevision,
@@ -84,7 +84,7 @@ export const actions: Actions = {
 				timeZone: user.timeZone
 			});
 		} catch (err) {
-			if (err instanceof InstructionError) {
+			if (err instanceof Refusal) {
 				if (err.fields?.password)
 					return setError(form, 'password', err.fields.password, { status: err.status });
 				if (err.fields?.effectiveDate)
@@ -102,8 +102,7 @@ export const actions: Actions = {
 		try {
 			await rejectRevision({ ...actorFrom(event), id: user.id }, revision.id, form.data.comment);
 		} catch (err) {
-			if (err instanceof InstructionError)
-				return message(form, err.message, { status: err.status });
+			if (err instanceof Refusal) return message(form, err.message, { status: err.status });
 			throw err;
 		}
 		redirect(303, `/instructions/${instruction.docNumber}/revisions/${revision.letter}`);
