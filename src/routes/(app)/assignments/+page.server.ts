@@ -29,7 +29,15 @@ export const load: PageServerLoad = async (event) => {
 		choices,
 		open,
 		filter,
-		form: await superValidate({ scope: 'line' as const }, zod4(assignSchema), { errors: false })
+		// A lead has one line: it is the default target.
+		form: await superValidate(
+			{
+				scope: 'line' as const,
+				lineId: choices.lines.length === 1 ? choices.lines[0].id : null
+			},
+			zod4(assignSchema),
+			{ errors: false }
+		)
 	};
 };
 
