@@ -1,6 +1,14 @@
 // Certification rules evaluated requirement by requirement, certificates issued in one transaction
 // with their basis and audit event, and the lifecycle moving certificates on time.
+import { createHash } from 'node:crypto';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { decodeQr, ocrLine, readPdf } from '../helpers/pdf-readback';
+import { getObjectStream } from '../../src/lib/server/storage';
+import { config } from '../../src/lib/server/config';
+import { localDate } from '../../src/lib/time';
 import { appDb, closeDbHelpers, createTestPerson, queryRows, type TestPerson } from '../helpers/db';
 import {
 	acknowledge,
@@ -13,7 +21,11 @@ import {
 	makeRule,
 	submittedAttempt
 } from '../helpers/training-fixtures';
-import { evaluateAndIssue, expiryInstant } from '../../src/lib/server/certificates/issue';
+import {
+	ensureCertificatePdf,
+	evaluateAndIssue,
+	expiryInstant
+} from '../../src/lib/server/certificates/issue';
 import { evaluatePerson } from '../../src/lib/server/certificates/evaluate';
 import { runCertificateLifecycle } from '../../src/lib/server/certificates/lifecycle';
 import { certificatesOf } from '../../src/lib/server/certificates/queries';
@@ -273,6 +285,56 @@ describe('retraining due when a retraining-required revision becomes effective',
 		// The renewed certificate rests on C, so the same run again leaves it alone.
 		await runCertificateLifecycle(inGrace);
 		expect((await certificateRows(onB.id, proc.id))[1].state).toBe('active');
+	});
+});
+
+describe('the issued certificate PDF', () => {
+	it('is stored at issue, prints the holder in Vietnamese and CJK, and its QR opens the verify URL', async () => {
+		const dir = await mkdtemp(path.join(tmpdir(), 'padbridge-issued-'));
+		try {
+			const s = await setup({ practical: false, check: false });
+			const op = await createTestPerson({
+				roles: ['operator'],
+				displayName: 'Đỗ Thị Ngọc Ánh / 李娜'
+			});
+			await acknowledge(op.id, s.ins.revisionIds[0]);
+			const r = await evaluateAndIssue(op.id, s.proc.id);
+			const [cert] = await certificateRows(op.id, s.proc.id);
+			const bytes = new Uint8Array(
+				await new Response(await getObjectStream(cert.pdf_key!)).arrayBuffer()
+			);
+			const read = await readPdf(bytes, dir, 'issued');
+			expect(read.text).toContain(op.displayName);
+			expect(read.text).toContain(r.number!);
+			expect(read.text).toContain(s.ins.docNumber);
+			const zone = 'Asia/Ho_Chi_Minh';
+			expect(read.text).toContain(`${localDate(cert.issued_at, zone)} (${zone}, GMT+7)`);
+			expect(read.text).toContain(`${localDate(cert.expires_at, zone)} (${zone}, GMT+7)`);
+			expect(await ocrLine(read.namePngPath, 'vie+chi_sim')).toBe(op.displayName);
+
+			const url = await decodeQr(read.pngPath);
+			expect(url).toMatch(new RegExp(`^${config.publicUrl}/verify/[A-Za-z0-9_-]{43}$`));
+			const token = url!.split('/').at(-1)!;
+			const [row] = await queryRows<{ verify_token_hash: string }>(
+				appDb(),
+				'SELECT verify_token_hash FROM certificates WHERE id = ?',
+				[r.certificateId]
+			);
+			expect(createHash('sha256').update(token).digest('hex')).toBe(row.verify_token_hash);
+
+			// A lost file is made again on demand, with a fresh token (the old one only lived in it).
+			await appDb().query('UPDATE certificates SET pdf_key = NULL WHERE id = ?', [r.certificateId]);
+			const key = await ensureCertificatePdf(r.certificateId!);
+			expect(key).not.toBe(cert.pdf_key);
+			const [after] = await queryRows<{ verify_token_hash: string }>(
+				appDb(),
+				'SELECT verify_token_hash FROM certificates WHERE id = ?',
+				[r.certificateId]
+			);
+			expect(after.verify_token_hash).not.toBe(row.verify_token_hash);
+		} finally {
+			await rm(dir, { recursive: true, force: true });
+		}
 	});
 });
 
