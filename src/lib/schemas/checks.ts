@@ -111,3 +111,36 @@ export const returnSchema = z.object({
 export const startSchema = z.object({
 	processId: z.coerce.number().int().positive()
 });
+
+/** Answers as posted: `q1`, `q2`, … each one or more values (checkboxes repeat the name). */
+export const answersSchema = z.record(
+	z.string().regex(/^q[1-9][0-9]{0,2}$/),
+	z.array(z.string().max(100, 'An answer may be at most 100 characters.')).max(12)
+);
+
+/** Answers of a JSON submission: `{ answers: { "1": "b", "2": ["a","c"], "3": "127.8" } }`. */
+export const answersJsonSchema = z.object({
+	answers: z
+		.record(
+			z.string().regex(/^[1-9][0-9]{0,2}$/),
+			z.union([z.string().max(100), z.number(), z.array(z.string().max(100)).max(12)])
+		)
+		.default({})
+});
+
+/** Reads a posted answer form into responses by position, or null when it is malformed. */
+export function answersFromForm(data: FormData): Record<number, string | string[]> | null {
+	const grouped: Record<string, string[]> = {};
+	for (const [name, value] of data.entries()) {
+		if (!/^q\d+$/.test(name)) continue;
+		(grouped[name] ??= []).push(typeof value === 'string' ? value : '');
+	}
+	const parsed = answersSchema.safeParse(grouped);
+	if (!parsed.success) return null;
+	const out: Record<number, string | string[]> = {};
+	for (const [name, values] of Object.entries(parsed.data)) {
+		const list = values.filter((v) => v !== '');
+		out[Number(name.slice(1))] = list.length > 1 ? list : (list[0] ?? '');
+	}
+	return out;
+}
