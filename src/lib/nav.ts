@@ -13,6 +13,8 @@ export const NAV: NavItem[] = [
 	{ href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
+	{ href: '/training/checks', label: 'My checks', roles: ['operator'] },
+	{ href: '/checks', label: 'Knowledge checks', roles: ['trainer', 'quality'] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
 	{ href: '/admin/plant', label: 'Plant', roles: ['admin'] },
