@@ -15,7 +15,8 @@ export const actions: Actions = {
 	start: async (event) => {
 		const user = requireUser(event);
 		const parsed = startSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { message: 'Choose a knowledge check to start.', processId: 0 });
+		if (!parsed.success)
+			return fail(400, { message: 'Choose a knowledge check to start.', processId: 0 });
 		let id: number;
 		try {
 			({ id } = await startAttempt({ ...actorFrom(event), id: user.id }, parsed.data.processId, {

@@ -31,7 +31,12 @@ async function post(event: RequestEvent, kind: 'save' | 'submit') {
 		if (kind === 'save') {
 			const { errors } = await saveAnswers(actor, id, answers, { timeZone: user.timeZone });
 			if (Object.keys(errors).length)
-				return refused(400, 'Some answers are not numbers; the others were saved.', errors, answers);
+				return refused(
+					400,
+					'Some answers are not numbers; the others were saved.',
+					errors,
+					answers
+				);
 			return { saved: true };
 		}
 		await submitAttempt(actor, id, answers, { timeZone: user.timeZone });
