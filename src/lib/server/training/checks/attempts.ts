@@ -483,8 +483,8 @@ export interface AttemptItemView {
 	/** The unit shown beside a numeric answer. */
 	unit: string | null;
 	response: unknown;
-	/** After submission only. */
-	correct: boolean | null;
+	/** After submission only: whether the answer was right (never what the right answer is). */
+	outcome: 'right' | 'wrong' | null;
 	/** After submission, for wrong answers only. */
 	explanation: string | null;
 }
@@ -556,7 +556,7 @@ export async function getAttemptView(
 			choices: (r.choiceOrder ?? []).map((id) => ({ id, text: byId.get(id) ?? '' })),
 			unit,
 			response: r.response ?? null,
-			correct: done ? (r.correct ?? false) : null,
+			outcome: done ? (r.correct ? 'right' : 'wrong') : null,
 			explanation: done && !r.correct ? (r.explanation ?? null) : null
 		};
 	});
