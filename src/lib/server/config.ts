@@ -13,5 +13,13 @@ export const config = {
 	},
 	adminEmail: e.ADMIN_EMAIL,
 	adminPassword: e.ADMIN_PASSWORD,
-	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2'
+	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2',
+	/** Base of links printed on certificates and in mail (the QR code's verify URL). */
+	/** The station gate answers deny `unavailable` when the database takes longer than this. */
+	gateTimeoutMs: Number(e.GATE_TIMEOUT_MS ?? 1500),
+	/** Zone used when a person has no site (should not happen in practice). */
+	plantTimeZone: e.PLANT_TIME_ZONE ?? 'Asia/Ho_Chi_Minh',
+	/** Short plant code used in certificate numbers. */
+	plantCode: e.PLANT_CODE ?? 'KBO2',
+	publicUrl: (e.PUBLIC_URL ?? e.ORIGIN ?? 'http://127.0.0.1:3000').replace(/\/+$/, '')
 };

@@ -1,0 +1,243 @@
+// The station gate: may this badge run this station now? Loads what decideGate needs in a few
+// queries under a short timeout. Whenever the database cannot answer in time the answer is deny
+// with reason `unavailable`: the gate fails closed, and recovers by itself with the pool.
+import { and, eq, gt, inArray, isNull, lte } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/mysql-core';
+import { db } from '../db';
+import {
+	certificates,
+	certificationRules,
+	gateChecks,
+	people,
+	processes,
+	sites,
+	stationProcesses,
+	stations,
+	supervisedRuns
+} from '../db/schema';
+import { config } from '../config';
+import { expiringWindowDays } from '../training/rules';
+import { deriveCertificateStatus } from '../../training/status';
+import {
+	decideGate,
+	type GateDecision,
+	type GateReason,
+	type GateWarning
+} from '../../gate/decide';
+import { localDate, zonedToUtc } from '../../time';
+
+export interface GateRequest {
+	station: string;
+	badge: string;
+	source: 'api' | 'kiosk';
+	apiKeyId?: number | null;
+}
+
+export interface GateAnswer extends GateDecision {
+	station: string;
+	person: { name: string; employeeNo: string } | null;
+	checkedAt: Date;
+	/** The gate log row, when it could be written. */
+	logId: number | null;
+}
+
+export class GateTimeout extends Error {}
+
+/** Resolves with `work`, or rejects with GateTimeout after `ms`. */
+export function withTimeout<T>(work: Promise<T>, ms: number): Promise<T> {
+	let timer: NodeJS.Timeout;
+	const timeout = new Promise<never>((_, reject) => {
+		timer = setTimeout(() => reject(new GateTimeout(`no answer within ${ms} ms`)), ms);
+	});
+	work.catch(() => {}); // a late failure after the timeout is not anyone's business
+	return Promise.race([work, timeout]).finally(() => clearTimeout(timer));
+}
+
+/** The station's id and active flag by code (for key binding checks), under the gate timeout. */
+export async function findStationByCode(code: string) {
+	const [s] = await withTimeout(
+		db
+			.select({ id: stations.id, code: stations.code, active: stations.active })
+			.from(stations)
+			.where(eq(stations.code, code)),
+		config.gateTimeoutMs
+	);
+	return s ?? null;
+}
+
+async function loadAndDecide(req: GateRequest, now: Date) {
+	const supervisor = alias(people, 'supervisor');
+	const [stationRow] = await db
+		.select({ id: stations.id, code: stations.code, active: stations.active })
+		.from(stations)
+		.where(eq(stations.code, req.station));
+	const procs = stationRow
+		? await db
+				.select({ id: processes.id, code: processes.code, name: processes.name })
+				.from(stationProcesses)
+				.innerJoin(processes, eq(processes.id, stationProcesses.processId))
+				.where(eq(stationProcesses.stationId, stationRow.id))
+		: [];
+	const [personRow] = stationRow
+		? await db
+				.select({
+					id: people.id,
+					displayName: people.displayName,
+					employeeNo: people.employeeNo,
+					active: people.active,
+					employmentType: people.employmentType,
+					contractEndsOn: people.contractEndsOn,
+					timeZone: sites.timeZone
+				})
+				.from(people)
+				.leftJoin(sites, eq(sites.id, people.siteId))
+				.where(eq(people.badgeNo, req.badge))
+		: [];
+	const zone = personRow?.timeZone ?? config.plantTimeZone;
+	const certs =
+		personRow && procs.length
+			? await db
+					.select({
+						processId: certificates.processId,
+						number: certificates.number,
+						state: certificates.state,
+						expiresAt: certificates.expiresAt,
+						graceUntil: certificates.graceUntil,
+						reminderDays: certificationRules.reminderDays
+					})
+					.from(certificates)
+					.innerJoin(certificationRules, eq(certificationRules.id, certificates.ruleId))
+					.where(
+						and(
+							eq(certificates.personId, personRow.id),
+							inArray(
+								certificates.processId,
+								procs.map((p) => p.id)
+							)
+						)
+					)
+			: [];
+	const [run] =
+		personRow && stationRow
+			? await db
+					.select({
+						id: supervisedRuns.id,
+						endsAt: supervisedRuns.endsAt,
+						supervisorName: supervisor.displayName
+					})
+					.from(supervisedRuns)
+					.innerJoin(supervisor, eq(supervisor.id, supervisedRuns.supervisorId))
+					.where(
+						and(
+							eq(supervisedRuns.personId, personRow.id),
+							eq(supervisedRuns.stationId, stationRow.id),
+							isNull(supervisedRuns.revokedAt),
+							lte(supervisedRuns.startsAt, now),
+							gt(supervisedRuns.endsAt, now)
+						)
+					)
+					.limit(1)
+			: [];
+	// A contract ends at the end of its last day: 00:00 of the next plant day.
+	const contractEndsAt = personRow?.contractEndsOn
+		? nextPlantMidnight(personRow.contractEndsOn, zone)
+		: null;
+	const decision = decideGate({
+		now,
+		today: localDate(now, zone),
+		contractEndsAt,
+		station: stationRow ? { ...stationRow, processes: procs } : null,
+		person: personRow ?? null,
+		certificates: certs.map((c) => ({
+			processId: c.processId,
+			number: c.number,
+			status: deriveCertificateStatus(c, now, expiringWindowDays(c)),
+			expiresAt: c.expiresAt,
+			graceUntil: c.graceUntil
+		})),
+		supervisedRun: run ?? null
+	});
+	return { decision, stationId: stationRow?.id ?? null, person: personRow ?? null };
+}
+
+/** 00:00 in the plant's zone on the day after `date`. */
+export function nextPlantMidnight(date: string, zone: string): Date {
+	const d = new Date(`${date}T00:00:00Z`);
+	d.setUTCDate(d.getUTCDate() + 1);
+	return zonedToUtc(d.toISOString().slice(0, 10), '00:00', zone);
+}
+
+// Decisions that could not be logged because the database was away; written with the next log.
+const unlogged: (typeof gateChecks.$inferInsert)[] = [];
+const UNLOGGED_MAX = 10_000;
+
+async function logDecision(row: typeof gateChecks.$inferInsert): Promise<number | null> {
+	try {
+		const [{ id }] = await withTimeout(
+			db.insert(gateChecks).values(row).$returningId(),
+			config.gateTimeoutMs
+		);
+		if (unlogged.length) {
+			const backlog = unlogged.splice(0);
+			await db
+				.insert(gateChecks)
+				.values(backlog)
+				.catch(() => unlogged.unshift(...backlog.slice(0, UNLOGGED_MAX)));
+		}
+		return id;
+	} catch {
+		if (unlogged.length < UNLOGGED_MAX) unlogged.push(row);
+		return null;
+	}
+}
+
+/** Decisions waiting to be logged (the database was unavailable when they were made). */
+export const unloggedGateDecisions = () => unlogged.length;
+
+/** Decides and logs one gate check. Never throws: any failure is a deny with a reason. */
+export async function checkStationAccess(
+	req: GateRequest,
+	now: Date = new Date()
+): Promise<GateAnswer> {
+	const started = performance.now();
+	let decision: GateDecision;
+	let stationId: number | null = null;
+	let person: { id: number; displayName: string; employeeNo: string } | null = null;
+	try {
+		const r = await withTimeout(loadAndDecide(req, now), config.gateTimeoutMs);
+		decision = r.decision;
+		stationId = r.stationId;
+		person = r.person;
+	} catch {
+		decision = {
+			decision: 'deny',
+			reasons: [{ code: 'unavailable', detail: 'Padbridge could not reach its database in time.' }],
+			warnings: [],
+			validUntil: null
+		};
+	}
+	const latencyMs = Math.round(performance.now() - started);
+	const logId = await logDecision({
+		at: now,
+		stationId,
+		stationCode: req.station.slice(0, 64),
+		badge: req.badge.slice(0, 64),
+		personId: person?.id ?? null,
+		decision: decision.decision,
+		reasons: decision.reasons as GateReason[],
+		warnings: decision.warnings as GateWarning[],
+		source: req.source,
+		apiKeyId: req.apiKeyId ?? null,
+		latencyMs
+	});
+	return {
+		...decision,
+		station: req.station,
+		person:
+			person && decision.reasons[0]?.code !== 'inactive_person'
+				? { name: person.displayName, employeeNo: person.employeeNo }
+				: null,
+		checkedAt: now,
+		logId
+	};
+}

@@ -1,0 +1,72 @@
+import { json } from '@sveltejs/kit';
+import { verifyApiKey } from '$lib/server/apikeys';
+import { checkStationAccess, findStationByCode, withTimeout } from '$lib/server/gate';
+import { config } from '$lib/server/config';
+import { fieldErrors, readJson } from '$lib/server/api';
+import { gateCheckSchema } from '$lib/schemas/gate';
+import type { RequestHandler } from './$types';
+
+const UNAVAILABLE = {
+	decision: 'deny',
+	reasons: [{ code: 'unavailable', detail: 'Padbridge could not reach its database in time.' }],
+	warnings: [],
+	person: null,
+	validUntil: null
+} as const;
+
+/** May this badge run this station now? Station API key required; fails closed. */
+export const POST: RequestHandler = async (event) => {
+	let key;
+	try {
+		key = await withTimeout(
+			verifyApiKey(event.request.headers.get('authorization'), 'gate'),
+			config.gateTimeoutMs
+		);
+	} catch {
+		return json(UNAVAILABLE, { status: 503 });
+	}
+	if (!key) {
+		return json(
+			{ error: 'A valid station gate API key is required: Authorization: Bearer pbk_…' },
+			{ status: 401, headers: { 'WWW-Authenticate': 'Bearer' } }
+		);
+	}
+	const body = await readJson(event.request);
+	if (!body.ok) return json({ error: body.error }, { status: body.status });
+	const parsed = gateCheckSchema.safeParse(body.value);
+	if (!parsed.success) {
+		return json(
+			{ error: 'Check the request fields.', fields: fieldErrors(parsed.error) },
+			{ status: 400 }
+		);
+	}
+	if (key.stationId != null) {
+		let station;
+		try {
+			station = await findStationByCode(parsed.data.station);
+		} catch {
+			return json(UNAVAILABLE, { status: 503 });
+		}
+		if (!station || station.id !== key.stationId) {
+			return json(
+				{ error: `This key belongs to another station; it cannot ask for ${parsed.data.station}.` },
+				{ status: 403 }
+			);
+		}
+	}
+	const answer = await checkStationAccess({ ...parsed.data, source: 'api', apiKeyId: key.id });
+	const unavailable = answer.reasons[0]?.code === 'unavailable';
+	return json(
+		{
+			decision: answer.decision,
+			reasons: answer.reasons,
+			warnings: answer.warnings,
+			person: answer.person,
+			validUntil: answer.validUntil,
+			station: answer.station,
+			checkedAt: answer.checkedAt,
+			checkId: answer.logId
+		},
+		{ status: unavailable ? 503 : 200 }
+	);
+};
