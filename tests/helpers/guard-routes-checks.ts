@@ -12,6 +12,13 @@ export const GUARD_ROUTES: GuardRoute[] = [
 		allowed: { status: 400 }
 	},
 	{ method: 'GET', path: '/training/checks', allowedRoles: 'signed-in' },
+	// A check nobody is asked to take: signed-in people get the 404 page, nobody gets data.
+	{
+		method: 'GET',
+		path: '/training/checks/KC-NONE-X',
+		allowedRoles: 'signed-in',
+		allowed: { status: 404 }
+	},
 	{
 		method: 'POST',
 		path: '/training/checks?/start',

@@ -15,6 +15,7 @@ import {
 import { recordAudit, type Actor } from '../../audit';
 import { Refusal } from '../../errors';
 import { ruleInForce } from '../rules';
+import { evaluateAndIssue } from '../../certificates/issue';
 import { formatLocal } from '../../../time';
 import {
 	computeKey,
@@ -465,12 +466,24 @@ export async function submitAttempt(
 	return result;
 }
 
-/** Work that follows a graded attempt, after its transaction committed. */
+/**
+ * After a passed attempt has committed, the certification rule may now be met: issue the
+ * certificate. The grade stands whatever happens here, so a failure is logged (with the attempt's
+ * person and process) rather than shown as a failed submission.
+ */
 async function afterGrading(
-	_actor: SignedActor,
-	_result: { passed: boolean; personId: number; processId: number }
+	actor: SignedActor,
+	result: { passed: boolean; personId: number; processId: number }
 ) {
-	// A passed attempt may complete a certification rule; certificate issuance hooks in here.
+	if (!result.passed) return;
+	try {
+		await evaluateAndIssue(result.personId, result.processId, { actor });
+	} catch (err) {
+		console.error(
+			`certificate evaluation after a passed attempt failed (person ${result.personId}, process ${result.processId})`,
+			err
+		);
+	}
 }
 
 export interface AttemptItemView {
