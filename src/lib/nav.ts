@@ -13,6 +13,8 @@ export const NAV: NavItem[] = [
 	{ href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
+	{ href: '/training/checks', label: 'My checks', roles: ['operator'] },
+	{ href: '/checks', label: 'Knowledge checks', roles: ['trainer', 'quality'] },
 	{ href: '/rules', label: 'Certification rules', roles: ['quality', 'admin'] },
 	{ href: '/assignments', label: 'Assignments', roles: ['quality', 'trainer', 'lead', 'admin'] },
 	{ href: '/crew', label: 'Crew', roles: ['lead', 'quality', 'admin'] },
