@@ -93,7 +93,9 @@ export async function listCertificates(
 		.limit(all ? 500 : 200);
 	const numbers = new Map(rows.map((r) => [r.id, r.number]));
 	const successors = await successorsOf(rows.map((r) => r.id));
-	const missing = rows.map((r) => r.previousId).filter((id): id is number => !!id && !numbers.has(id));
+	const missing = rows
+		.map((r) => r.previousId)
+		.filter((id): id is number => !!id && !numbers.has(id));
 	if (missing.length) {
 		const prev = await db
 			.select({ id: certificates.id, number: certificates.number })
@@ -122,7 +124,11 @@ async function successorsOf(ids: number[]) {
 	const out = new Map<number, { id: number; number: string }>();
 	if (!ids.length) return out;
 	const rows = await db
-		.select({ id: certificates.id, number: certificates.number, previousId: certificates.previousId })
+		.select({
+			id: certificates.id,
+			number: certificates.number,
+			previousId: certificates.previousId
+		})
 		.from(certificates)
 		.where(inArray(certificates.previousId, ids));
 	for (const r of rows) if (r.previousId) out.set(r.previousId, { id: r.id, number: r.number });
@@ -270,8 +276,12 @@ export async function changeCertificateState(
 		let next: CertificateState;
 		if (action === 'suspend') {
 			if (c.state !== 'active' && c.state !== 'retraining_due')
-				throw new Refusal(409, `A certificate that is ${status.replace('_', ' ')} cannot be suspended.`);
-			if (status === 'expired') throw new Refusal(409, 'An expired certificate cannot be suspended.');
+				throw new Refusal(
+					409,
+					`A certificate that is ${status.replace('_', ' ')} cannot be suspended.`
+				);
+			if (status === 'expired')
+				throw new Refusal(409, 'An expired certificate cannot be suspended.');
 			next = 'suspended';
 		} else if (action === 'reinstate') {
 			if (c.state !== 'suspended')

@@ -195,7 +195,8 @@ async function loadItems(signoffId: number, conn: DbOrTx = db) {
 }
 
 /** The photo's sha256, which is part of its object key (see saveSignoffItem). */
-const photoSha = (key: string | null) => (key ? (/([0-9a-f]{64})\.\w+$/.exec(key)?.[1] ?? key) : null);
+const photoSha = (key: string | null) =>
+	key ? (/([0-9a-f]{64})\.\w+$/.exec(key)?.[1] ?? key) : null;
 
 /** sha256 over what both signatures vouch for: who, what checklist, and every step's outcome. */
 export function computeSignoffHash(

@@ -28,7 +28,11 @@ export const actions: Actions = {
 	item: async (event) => {
 		const user = requireUser(event);
 		const form = await superValidate(event.request, zod4(signoffItemSchema));
-		const values = { itemId: form.data.itemId, result: form.data.result, comment: form.data.comment };
+		const values = {
+			itemId: form.data.itemId,
+			result: form.data.result,
+			comment: form.data.comment
+		};
 		const errors = (e: Record<string, string | undefined>) => ({ item: { ...values, errors: e } });
 		if (!form.valid)
 			return fail(
@@ -40,10 +44,14 @@ export const actions: Actions = {
 				})
 			);
 		try {
-			await saveSignoffItem({ ...actorFrom(event), id: user.id, roles: user.roles }, Number(event.params.id), {
-				...form.data,
-				photo: form.data.photo ?? null
-			});
+			await saveSignoffItem(
+				{ ...actorFrom(event), id: user.id, roles: user.roles },
+				Number(event.params.id),
+				{
+					...form.data,
+					photo: form.data.photo ?? null
+				}
+			);
 		} catch (err) {
 			if (!(err instanceof Refusal)) throw err;
 			if (err.status === 404) pageRefusal(err);
@@ -58,7 +66,11 @@ export const actions: Actions = {
 		const { password } = form.data;
 		form.data.password = '';
 		try {
-			await signSignoff({ ...actorFrom(event), id: user.id, roles: user.roles }, Number(event.params.id), password);
+			await signSignoff(
+				{ ...actorFrom(event), id: user.id, roles: user.roles },
+				Number(event.params.id),
+				password
+			);
 		} catch (err) {
 			if (err instanceof Refusal && err.status === 404) pageRefusal(err);
 			return refuseForm(form, err);

@@ -4,11 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import { refuseForm } from '$lib/server/forms';
-import {
-	findPeopleToObserve,
-	listStartChoices,
-	startSignoff
-} from '$lib/server/training/signoffs';
+import { findPeopleToObserve, listStartChoices, startSignoff } from '$lib/server/training/signoffs';
 import { personSearchSchema, startSignoffSchema } from '$lib/schemas/signoffs';
 import type { Actions, PageServerLoad } from './$types';
 

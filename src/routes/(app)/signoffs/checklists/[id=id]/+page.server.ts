@@ -50,7 +50,11 @@ export const actions: Actions = {
 		const form = await superValidate(event.request, zod4(retireSchema), { id: 'retire' });
 		if (!form.valid) return fail(400, { retireForm: form });
 		try {
-			await retireChecklist({ ...actorFrom(event), id: user.id }, Number(event.params.id), form.data.reason);
+			await retireChecklist(
+				{ ...actorFrom(event), id: user.id },
+				Number(event.params.id),
+				form.data.reason
+			);
 		} catch (err) {
 			return refuseForm(form, err);
 		}

@@ -8,9 +8,11 @@ import type { RequestHandler } from './$types';
 /** A step's photo, for those who may see the sign-off; served so it cannot run anything. */
 export const GET: RequestHandler = async (event) => {
 	const user = requireUser(event);
-	const photo = await getSignoffPhoto(user, Number(event.params.id), Number(event.params.item)).catch(
-		pageRefusal
-	);
+	const photo = await getSignoffPhoto(
+		user,
+		Number(event.params.id),
+		Number(event.params.item)
+	).catch(pageRefusal);
 	const body = await getObjectStream(photo.key);
 	if (!body) error(404, { message: 'No photo for this step.' });
 	return new Response(body, {
