@@ -423,7 +423,8 @@ const twoRevs = (
 	f: (r: 'A' | 'B') => string,
 	summaryB: string,
 	reasonB: string,
-	cls: DemoRevision['classification'] = 'acknowledge'
+	cls: DemoRevision['classification'] = 'acknowledge',
+	daysAgoB = 95
 ): DemoRevision[] => [
 	{
 		letter: 'A',
@@ -437,7 +438,7 @@ const twoRevs = (
 	{
 		letter: 'B',
 		kind: 'effective',
-		daysAgo: 95,
+		daysAgo: daysAgoB,
 		summary: summaryB,
 		reason: reasonB,
 		classification: cls,
@@ -600,7 +601,9 @@ export const DEMO_INSTRUCTIONS: DemoInstruction[] = [
 			indentation,
 			'Minimum marks per bump 3 → 5; any bridging is a reject.',
 			'Customer specification update for the automotive panels.',
-			'retraining'
+			'retraining',
+			// Recent, so the demo shows certificates in their retraining grace period.
+			6
 		)
 	},
 	{

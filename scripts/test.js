@@ -89,7 +89,11 @@ try {
 	const built = step('build', bin('vite'), ['build', '--logLevel', 'error']);
 	if (built) {
 		await startApp();
-		step('vitest', bin('vitest'), ['run']);
+		// VITEST_FILTER narrows the run while working, e.g. VITEST_FILTER=certification npm test -- vitest
+		step('vitest', bin('vitest'), [
+			'run',
+			...(process.env.VITEST_FILTER ?? '').split(' ').filter(Boolean)
+		]);
 		step('e2e', bin('playwright'), ['test']);
 	}
 } finally {

@@ -4,9 +4,12 @@ import { randomUUID } from 'node:crypto';
 import { handle as authHandle } from '$lib/server/auth/authjs';
 import { loadSessionUser } from '$lib/server/auth/sessions';
 import { ensureBootstrapAdmin } from '$lib/server/people';
+import { startScheduler } from '$lib/server/jobs/scheduler';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
+	// PADBRIDGE_JOBS=off leaves scheduled work to other instances (or to tests that drive it).
+	if (process.env.PADBRIDGE_JOBS !== 'off') startScheduler();
 };
 
 /** Re-reads the signed-in person from the database on every request (revocation is immediate). */

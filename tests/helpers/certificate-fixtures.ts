@@ -7,7 +7,7 @@ import { PDFDocument, StandardFonts } from 'pdf-lib';
 import { db } from '../../src/lib/server/db/index';
 import { certificates, certificationRules, processes } from '../../src/lib/server/db/schema/index';
 import { putObject } from '../../src/lib/server/storage/index';
-import { hashVerifyToken } from '../../src/lib/server/certificates/verify';
+import { hashVerifyToken } from '../../src/lib/server/certificates/issue';
 import type { CertificateState } from '../../src/lib/training/vocabulary';
 
 const DAY = 86_400_000;

@@ -18,5 +18,9 @@ export const config = {
 	},
 	adminEmail: e.ADMIN_EMAIL,
 	adminPassword: e.ADMIN_PASSWORD,
-	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2'
+	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2',
+	/** Base of links printed on certificates and in mail (the QR code's verify URL). */
+	/** Short plant code used in certificate numbers. */
+	plantCode: e.PLANT_CODE ?? 'KBO2',
+	publicUrl: (e.PUBLIC_URL ?? e.ORIGIN ?? 'http://127.0.0.1:3000').replace(/\/+$/, '')
 };

@@ -77,3 +77,17 @@ export const QUALIFYING_STATUSES: readonly CertificateStatus[] = [
 
 export const BASIS_KINDS = ['acknowledgement', 'attempt', 'signoff'] as const;
 export type BasisKind = (typeof BASIS_KINDS)[number];
+
+export const CERTIFICATE_STATUS_TONES: Record<
+	CertificateStatus,
+	'valid' | 'denied' | 'info' | 'warn' | 'neutral' | 'superseded'
+> = {
+	valid: 'valid',
+	expiring: 'warn',
+	retraining_due: 'warn',
+	retraining_overdue: 'denied',
+	expired: 'denied',
+	suspended: 'denied',
+	withdrawn: 'denied',
+	superseded: 'superseded'
+};

@@ -1,6 +1,5 @@
 // The public verification behind a certificate's QR code: found by the sha256 of the token only,
 // rate-limited per client address, and answering with as little personal data as the rule allows.
-import { createHash } from 'node:crypto';
 import { and, count, eq, gte, lt } from 'drizzle-orm';
 import { db } from '../db';
 import {
@@ -16,9 +15,9 @@ import { Refusal } from '../errors';
 import { deriveCertificateStatus } from '../../training/status';
 import type { CertificateStatus } from '../../training/vocabulary';
 import { expiringWindowDays } from '../training/rules';
+import { hashVerifyToken } from './issue';
 
-export const hashVerifyToken = (token: string) =>
-	createHash('sha256').update(token, 'utf8').digest('hex');
+export { hashVerifyToken };
 
 /** "Trần Thị Thu Hà" → "T. T. T. H."; a name written without spaces gives its first character. */
 export function initialsOf(name: string): string {

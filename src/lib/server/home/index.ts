@@ -11,6 +11,7 @@ import {
 } from '../db/schema';
 import type { SessionUser } from '../auth/sessions';
 import { localDate } from '../../time';
+import { trainingFor, type TrainingItem } from '../training/next-steps';
 
 /** Stations of a line with the processes each requires. */
 async function stationsOfLine(lineId: number) {
@@ -62,12 +63,16 @@ export async function homeFor(user: SessionUser) {
 		}[];
 		headcount?: { employmentType: string; n: number }[];
 		contractsEnding?: { name: string; employeeNo: string; contractEndsOn: string | null }[];
+		training?: TrainingItem[];
 	} = { me };
 
 	const has = (r: string) => user.roles.includes(r as never);
 
 	if ((has('operator') || has('trainer')) && me?.lineId) {
 		result.myStations = await stationsOfLine(me.lineId);
+	}
+	if (has('operator') || has('trainer')) {
+		result.training = await trainingFor(user.id, localDate(new Date(), user.timeZone));
 	}
 	if (has('lead') && me?.lineId) {
 		result.crew = (

@@ -4,3 +4,4 @@ export * from './audit';
 export * from './instructions';
 export * from './training';
 export * from './certificates';
+export * from './gate';

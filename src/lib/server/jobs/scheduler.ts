@@ -1,0 +1,45 @@
+// The in-app scheduler: every app instance ticks, and a lease in the database decides which one
+// runs each job, so a job runs once per interval however many instances there are.
+import { runCertificateLifecycle } from '../certificates/lifecycle';
+import { recordJobRun, takeLease } from './lease';
+
+export interface Job {
+	name: string;
+	intervalMs: number;
+	run: (now: Date) => Promise<unknown>;
+}
+
+export const JOBS: Job[] = [
+	{ name: 'certificate-lifecycle', intervalMs: 60_000, run: (now) => runCertificateLifecycle(now) }
+];
+
+/** Runs every job whose lease this instance can take now; errors are recorded, not thrown. */
+export async function tick(now: Date = new Date(), jobs: Job[] = JOBS) {
+	for (const job of jobs) {
+		// The lease is a little shorter than the interval so the next tick can take it on time.
+		if (!(await takeLease(job.name, job.intervalMs - 1_000, now))) continue;
+		try {
+			const result = await job.run(now);
+			await recordJobRun(job.name, JSON.stringify(result ?? null), now);
+		} catch (err) {
+			await recordJobRun(job.name, `failed: ${(err as Error).message}`, now).catch(() => {});
+			console.error(`job ${job.name} failed`, err);
+		}
+	}
+}
+
+let timer: NodeJS.Timeout | null = null;
+
+/** Starts ticking every 15 s (the jobs' own intervals space their runs). */
+export function startScheduler() {
+	if (timer) return;
+	const loop = () => tick().catch((err) => console.error('scheduler tick failed', err));
+	timer = setInterval(loop, 15_000);
+	timer.unref();
+	setTimeout(loop, 2_000).unref();
+}
+
+export function stopScheduler() {
+	if (timer) clearInterval(timer);
+	timer = null;
+}
