@@ -60,6 +60,11 @@ const headers: Handle = async ({ event, resolve }) => {
 		h.set('Content-Security-Policy', "default-src 'none'; frame-ancestors 'none'");
 	}
 	if (event.locals.user) h.set('Cache-Control', 'no-store');
+	// Public certificate checks (found, unknown or rate-limited) stay out of search engines.
+	if (event.url.pathname.startsWith('/verify/')) {
+		h.set('X-Robots-Tag', 'noindex, nofollow');
+		h.set('Cache-Control', 'no-store');
+	}
 	return response;
 };
 

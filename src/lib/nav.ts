@@ -11,6 +11,9 @@ export interface NavItem {
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Home', roles: [] },
 	{ href: '/instructions', label: 'Instructions', roles: [] },
+	{ href: '/certificates', label: 'Certificates', roles: [] },
+	{ href: '/my-signoffs', label: 'My sign-offs', roles: ['operator'] },
+	{ href: '/signoffs', label: 'Practical sign-offs', roles: ['trainer', 'quality', 'admin'] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
 	{ href: '/training/checks', label: 'My checks', roles: ['operator'] },

@@ -11,6 +11,11 @@ export const config = {
 		perAccount: Number(e.SIGNIN_MAX_PER_ACCOUNT ?? 10),
 		perAddress: Number(e.SIGNIN_MAX_PER_ADDRESS ?? 50)
 	},
+	/** Public certificate verification: lookups allowed per client address in the window. */
+	verify: {
+		windowMinutes: Number(e.VERIFY_WINDOW_MINUTES ?? 10),
+		maxPerWindow: Number(e.VERIFY_MAX_PER_WINDOW ?? 30)
+	},
 	adminEmail: e.ADMIN_EMAIL,
 	adminPassword: e.ADMIN_PASSWORD,
 	plantName: e.PLANT_NAME ?? 'Kestrel Bay Optronics · KBO-2',

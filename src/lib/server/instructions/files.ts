@@ -56,22 +56,24 @@ function looksLikeSvgOrHtml(bytes: Uint8Array, name: string) {
 	);
 }
 
-/** Checks, cleans and stores one uploaded file in a draft revision. */
-export async function addRevisionFile(
-	actor: Actor & { id: number },
-	revisionId: number,
-	upload: { name: string; bytes: Uint8Array }
-) {
-	const [rev] = await db
-		.select({ state: revisions.state, letter: revisions.letter })
-		.from(revisions)
-		.where(eq(revisions.id, revisionId));
-	if (!rev) throw notFound();
-	if (rev.state !== 'draft')
-		throw new InstructionError(
-			409,
-			'Files are frozen: they can change only while the revision is a draft.'
-		);
+export interface CheckedUpload {
+	stored: Uint8Array;
+	mime: string;
+	ext: string;
+	kind: 'image' | 'attachment';
+	widthPx: number | null;
+	heightPx: number | null;
+	sha256: string;
+}
+
+/**
+ * Checks an upload by its content (type sniffed, SVG refused, size limit, pixel-flood guard) and
+ * re-encodes images, which drops EXIF/GPS. `imagesOnly` refuses PDFs (sign-off photos).
+ */
+export async function checkUpload(
+	upload: { name: string; bytes: Uint8Array },
+	imagesOnly = false
+): Promise<CheckedUpload> {
 	const { bytes } = upload;
 	if (bytes.byteLength === 0)
 		throw new InstructionError(400, 'The file is empty (0 bytes). Choose the file again.', {
@@ -84,11 +86,12 @@ export async function addRevisionFile(
 			{ file: 'SVG refused.' }
 		);
 	const detected = await fileTypeFromBuffer(bytes);
-	const type = detected ? ALLOWED[detected.mime] : undefined;
+	const found = detected ? ALLOWED[detected.mime] : undefined;
+	const type = imagesOnly && found?.kind !== 'image' ? undefined : found;
 	if (!detected || !type)
 		throw new InstructionError(
 			415,
-			`Only JPEG, PNG or WebP images and PDF files are accepted. By its content this file is ${detected ? detected.mime : 'not a recognised image or PDF'}, whatever its name says.`,
+			`Only JPEG, PNG or WebP images${imagesOnly ? '' : ' and PDF files'} are accepted. By its content this file is ${detected ? detected.mime : 'not a recognised image or PDF'}, whatever its name says.`,
 			{ file: 'Type not allowed.' }
 		);
 	if (bytes.byteLength > type.limit)
@@ -128,10 +131,39 @@ export async function addRevisionFile(
 			});
 		}
 	}
-	const originalName = cleanFileName(upload.name, type.ext);
 	const sha256 = createHash('sha256').update(stored).digest('hex');
-	const storageKey = `revisions/${revisionId}/${randomUUID()}.${type.ext}`;
-	await putObject(storageKey, stored, detected.mime);
+	return {
+		stored,
+		mime: detected.mime,
+		ext: type.ext,
+		kind: type.kind,
+		widthPx,
+		heightPx,
+		sha256
+	};
+}
+
+/** Checks, cleans and stores one uploaded file in a draft revision. */
+export async function addRevisionFile(
+	actor: Actor & { id: number },
+	revisionId: number,
+	upload: { name: string; bytes: Uint8Array }
+) {
+	const [rev] = await db
+		.select({ state: revisions.state, letter: revisions.letter })
+		.from(revisions)
+		.where(eq(revisions.id, revisionId));
+	if (!rev) throw notFound();
+	if (rev.state !== 'draft')
+		throw new InstructionError(
+			409,
+			'Files are frozen: they can change only while the revision is a draft.'
+		);
+	const checked = await checkUpload(upload);
+	const { stored, widthPx, heightPx, sha256 } = checked;
+	const originalName = cleanFileName(upload.name, checked.ext);
+	const storageKey = `revisions/${revisionId}/${randomUUID()}.${checked.ext}`;
+	await putObject(storageKey, stored, checked.mime);
 	try {
 		return await db.transaction(async (tx) => {
 			const [locked] = await tx
@@ -145,10 +177,10 @@ export async function addRevisionFile(
 				.insert(revisionFiles)
 				.values({
 					revisionId,
-					kind: type.kind,
+					kind: checked.kind,
 					storageKey,
 					originalName,
-					contentType: detected.mime,
+					contentType: checked.mime,
 					sizeBytes: stored.byteLength,
 					sha256,
 					widthPx,
@@ -168,7 +200,7 @@ export async function addRevisionFile(
 				newValues: {
 					fileId: id,
 					originalName,
-					contentType: detected.mime,
+					contentType: checked.mime,
 					sizeBytes: stored.byteLength,
 					sha256
 				}
@@ -176,8 +208,8 @@ export async function addRevisionFile(
 			return {
 				id,
 				originalName,
-				contentType: detected.mime,
-				kind: type.kind,
+				contentType: checked.mime,
+				kind: checked.kind,
 				sizeBytes: stored.byteLength
 			};
 		});

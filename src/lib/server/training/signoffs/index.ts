@@ -1,0 +1,2 @@
+export * from './checklists';
+export * from './signoffs';
