@@ -55,7 +55,7 @@ const PLANS: Plan[] = [
 		}
 	},
 	{ badge: 'KB-10429', process: 'COG-MB', daysAgo: [30] },
-	{ badge: 'KB-10430', process: 'COG-MB', daysAgo: [360] },
+	{ badge: 'KB-10430', process: 'ESD-BASIC', daysAgo: [358] },
 	{ badge: 'KB-10423', process: 'ACF-LAM', daysAgo: [50] },
 	{ badge: 'KB-10424', process: 'ACF-LAM', daysAgo: [45] },
 	{ badge: 'AG-2201', process: 'ACF-LAM', daysAgo: [25] },
@@ -67,7 +67,7 @@ const PLANS: Plan[] = [
 	{ badge: 'KB-10434', process: 'FOG-MB', daysAgo: [35] },
 	{ badge: 'KB-10435', process: 'FOG-MB', daysAgo: [345] },
 	{ badge: 'KB-10436', process: 'FOG-MB', daysAgo: [150] },
-	{ badge: 'KB-10437', process: 'FOG-MB', daysAgo: [390] },
+	{ badge: 'KB-10437', process: 'FOG-MB', daysAgo: [375] },
 	{
 		badge: 'KB-10438',
 		process: 'FOG-MB',

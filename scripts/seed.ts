@@ -1,7 +1,9 @@
 // Loads the demo plant of the product brief: Kestrel Bay Optronics, plant KBO-2 (invented).
 // Run by `npm start` / `npm test` when the database is empty, as the owner user.
 import { db, pool } from '../src/lib/server/db/index';
+import { eq } from 'drizzle-orm';
 import {
+	checklists,
 	lines,
 	people,
 	processes,
@@ -16,6 +18,10 @@ import { hashSecret } from '../src/lib/server/auth/password';
 import type { Role } from '../src/lib/roles';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-accounts.js';
 import { seedInstructions } from './seed-instructions';
+import { seedChecks } from './seed-checks';
+import { seedChecklists } from './seed-signoffs';
+import { seedRulesAndAssignments } from './seed-rules';
+import { seedCertificates } from './seed-certificates';
 
 const DEMO_PIN = DEMO_ACCOUNTS.find((a) => a.role === 'operator')!.pin!;
 
@@ -280,6 +286,25 @@ async function main() {
 	});
 	console.log(`demo plant loaded in ${Date.now() - started} ms`);
 	await seedInstructions();
+	await seedTraining();
+}
+
+/** Knowledge checks, checklists, certification rules and assignments, then the certificate history. */
+async function seedTraining() {
+	const checks = await seedChecks();
+	await seedChecklists();
+	const lists = await db
+		.select({ id: checklists.id, process: processes.code })
+		.from(checklists)
+		.innerJoin(processes, eq(processes.id, checklists.processId));
+	await seedRulesAndAssignments({
+		// KC-COG-MB checks process COG-MB.
+		checks: Object.fromEntries(
+			Object.entries(checks).map(([code, c]) => [code.replace(/^KC-/, ''), c.checkId])
+		),
+		checklists: Object.fromEntries(lists.map((l) => [l.process, l.id]))
+	});
+	await seedCertificates();
 }
 
 main()

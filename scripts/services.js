@@ -26,7 +26,18 @@ async function portOpen(port) {
 	});
 }
 
-export async function startFakes(cfg, { detached = true } = {}) {
+export /** The S3 fake opens its port before it has made the bucket: wait for the bucket itself. */
+async function bucketReady(cfg) {
+	try {
+		const res = await fetch(`http://127.0.0.1:${cfg.s3Port}/padbridge?max-keys=1`);
+		await res.body?.cancel();
+		return res.ok;
+	} catch {
+		return false;
+	}
+}
+
+async function startFakes(cfg, { detached = true } = {}) {
 	if (existsSync(cfg.runFile)) {
 		const prev = JSON.parse(readFileSync(cfg.runFile, 'utf8'));
 		if (prev.fakes && processAlive(prev.fakes, 'node') && (await portOpen(cfg.smtpPort))) {
@@ -53,7 +64,7 @@ export async function startFakes(cfg, { detached = true } = {}) {
 	if (detached) child.unref();
 	for (let i = 0; i < 60; i++) {
 		await sleep(200);
-		if ((await portOpen(cfg.smtpPort)) && (await portOpen(cfg.s3Port))) {
+		if ((await portOpen(cfg.smtpPort)) && (await bucketReady(cfg))) {
 			log(
 				`local fakes started (pid ${child.pid}): SMTP ${cfg.smtpPort}, mail page ${cfg.mailWebPort}, S3 ${cfg.s3Port}`
 			);

@@ -1,5 +1,6 @@
 /* eslint-disable @typescript-eslint/no-explicit-any -- field names of a Refusal are known only at run time */
 // Turning a Refusal from a domain function into a superforms answer that keeps the input.
+import { fail } from '@sveltejs/kit';
 import { message, setError, type SuperValidated } from 'sveltekit-superforms';
 import { Refusal } from './errors';
 
@@ -19,4 +20,24 @@ export function refuseForm<T extends Record<string, unknown>>(
 		return setError(form, fields[0][0] as any, fields[0][1], { status: err.status });
 	}
 	return message(form, err.message, { status: err.status });
+}
+
+/**
+ * Like refuseForm, for pages that show refusals as the form's own error (`$errors._errors`) and
+ * keep the message for success: a Refusal becomes errors on its fields, or on the whole form.
+ */
+export function refusalToForm<T extends Record<string, unknown>>(
+	form: SuperValidated<T>,
+	err: unknown
+) {
+	if (!(err instanceof Refusal)) throw err;
+	const status = err.status;
+	const fields = Object.entries(err.fields ?? {});
+	if (!fields.length) return setError(form, '', err.message, { status });
+	for (const [field, msg] of fields) {
+		// superforms keeps an array's own errors under `_errors`.
+		const path = Array.isArray(form.data[field]) ? `${field}._errors` : field;
+		setError(form, path as never, msg, { status });
+	}
+	return fail(status, { form });
 }

@@ -3,7 +3,7 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refusalToForm } from '$lib/server/training/forms';
+import { refusalToForm } from '$lib/server/forms';
 import {
 	createRuleVersion,
 	nextVersionDefaults,
