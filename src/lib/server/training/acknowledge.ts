@@ -61,7 +61,8 @@ export async function acknowledgementView(viewer: Viewer, docNumber: string, now
 	const render = (r: NonNullable<Awaited<ReturnType<typeof getRevision>>>) =>
 		renderRevision(instruction.docNumber, r.letter, r.source, r.files);
 	const html = (await render(revision)).html;
-	let blocks = diffRenderedBlocks('', html).right;
+	// First reading: nothing is marked; after an earlier acknowledgement, what changed since it is.
+	let blocks = diffRenderedBlocks(html, html).right;
 	if (previous) {
 		const old = await getRevision(instruction.id, previous.letter);
 		if (old) blocks = diffRenderedBlocks((await render(old)).html, html).right;

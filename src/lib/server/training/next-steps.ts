@@ -11,7 +11,7 @@ export interface TrainingItem extends ProcessEvaluation {
 	overdue: boolean;
 	/** The first requirement not met, in the order acknowledgement → check → sign-off. */
 	next: ProcessEvaluation['requirements'][number] | null;
-	/** True when nothing is left to do (a qualifying certificate and no open requirement to renew). */
+	/** True when nothing is left to do: a qualifying certificate, nothing to renew, no new revision to acknowledge. */
 	done: boolean;
 }
 
@@ -44,14 +44,17 @@ export async function trainingFor(
 		const renewing =
 			!!e.certificate && ['expiring', 'retraining_due'].includes(e.certificate.status);
 		const next = requirements.find((r) => !r.met) ?? null;
+		// A new revision to acknowledge is always asked for, certified or not.
+		const newRevision = requirements.find((r) => r.kind === 'acknowledgement' && !r.met) ?? null;
 		const dueOn = due.get(e.processId) ?? null;
+		const done = qualified && !renewing && !newRevision;
 		return {
 			...e,
 			requirements,
 			dueOn,
 			overdue: !qualified && !!dueOn && dueOn < today,
-			next: qualified && !renewing ? null : next,
-			done: qualified && !renewing
+			next: done ? null : qualified && !renewing ? newRevision : next,
+			done
 		};
 	});
 	// Open work first (overdue, then by due date), finished ones last.
