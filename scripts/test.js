@@ -94,7 +94,10 @@ try {
 			'run',
 			...(process.env.VITEST_FILTER ?? '').split(' ').filter(Boolean)
 		]);
-		step('e2e', bin('playwright'), ['test']);
+		step('e2e', bin('playwright'), [
+			'test',
+			...(process.env.E2E_FILTER ?? '').split(' ').filter(Boolean)
+		]);
 	}
 } finally {
 	cleanup();
