@@ -12,6 +12,7 @@ export const NAV: NavItem[] = [
 	{ href: '/', label: 'Home', roles: [] },
 	{ href: '/instructions', label: 'Instructions', roles: [] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
+	{ href: '/messages', label: 'Messages', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
