@@ -58,7 +58,9 @@ function step(name, cmd, args, extraEnv = {}) {
 async function startApp() {
 	app = spawn(process.execPath, [join(root, 'build')], {
 		cwd: root,
-		env: { ...env, NODE_ENV: 'production' },
+		// The tests drive the scheduled jobs themselves (with their own `now`), so the test app's
+		// scheduler stays off; otherwise it would send and expire rows under the tests' feet.
+		env: { ...env, NODE_ENV: 'production', PADBRIDGE_JOBS: 'off' },
 		stdio: ['ignore', 'inherit', 'inherit']
 	});
 	if (!(await waitForHttp(`${env.TEST_APP_URL}/api/health`, 30_000))) {

@@ -15,6 +15,7 @@ export const NAV: NavItem[] = [
 	{ href: '/my-signoffs', label: 'My sign-offs', roles: ['operator'] },
 	{ href: '/signoffs', label: 'Practical sign-offs', roles: ['trainer', 'quality', 'admin'] },
 	{ href: '/calculators', label: 'Calculators', roles: [] },
+	{ href: '/messages', label: 'Messages', roles: [] },
 	{ href: '/help', label: 'Help', roles: [] },
 	{ href: '/training/checks', label: 'My checks', roles: ['operator'] },
 	{ href: '/checks', label: 'Knowledge checks', roles: ['trainer', 'quality'] },

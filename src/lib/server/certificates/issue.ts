@@ -61,7 +61,8 @@ export function expiryInstant(issuedAt: Date, validityMonths: number, timeZone: 
 	);
 }
 
-async function siteZoneOf(personId: number, conn: Tx | typeof db): Promise<string> {
+/** The IANA zone of the person's site (the first site when they have none). */
+export async function siteZoneOf(personId: number, conn: Tx | typeof db): Promise<string> {
 	const [row] = await conn
 		.select({ timeZone: sites.timeZone })
 		.from(people)

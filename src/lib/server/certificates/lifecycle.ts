@@ -13,6 +13,7 @@ import {
 	instructions
 } from '../db/schema';
 import { recordAudit } from '../audit';
+import { queueRetrainingMail } from '../mail/events';
 
 const DAY_MS = 86_400_000;
 const BATCH = 500;
@@ -158,6 +159,14 @@ export async function markRetrainingDue(now: Date): Promise<number> {
 						graceUntil: graceUntil.toISOString()
 					},
 					reason: 'a revision that needs retraining became effective'
+				});
+				await queueRetrainingMail(tx, {
+					certificateId: r.id,
+					revisionId: r.newerId,
+					docNumber: r.docNumber,
+					letter: r.newerLetter,
+					graceUntil,
+					now
 				});
 			}
 			return first.size;

@@ -26,6 +26,7 @@ import { InstructionError, isDuplicateKey, notFound } from './errors';
 import { computeContentHash } from './hash';
 import { listRevisionFiles } from './queries';
 import { insertSignature, reauthenticateSigner } from './signatures';
+import { queueReviewRequestedMail } from '../mail/events';
 
 type SignedActor = Actor & { id: number };
 
@@ -365,6 +366,22 @@ export async function submitRevision(actor: SignedActor, revisionId: number, inp
 				classification: input.classification
 			},
 			reason: input.reason
+		});
+		const [meta] = await tx
+			.select({ title: instructions.title, author: people.displayName })
+			.from(instructions)
+			.innerJoin(people, eq(people.id, r.authorId))
+			.where(eq(instructions.id, r.instructionId));
+		await queueReviewRequestedMail(tx, {
+			revisionId,
+			version: r.version + 1,
+			docNumber: r.docNumber,
+			letter: r.letter,
+			title: meta.title,
+			authorId: r.authorId,
+			authorName: meta.author,
+			changeSummary: input.changeSummary,
+			classification: input.classification
 		});
 	});
 }

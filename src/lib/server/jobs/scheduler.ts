@@ -1,6 +1,9 @@
 // The in-app scheduler: every app instance ticks, and a lease in the database decides which one
 // runs each job, so a job runs once per interval however many instances there are.
 import { runCertificateLifecycle } from '../certificates/lifecycle';
+import { queueLeadDigests } from '../mail/digest';
+import { queueExpiryReminders } from '../mail/reminders';
+import { sendPendingMail } from '../mail/send';
 import { recordJobRun, takeLease } from './lease';
 
 export interface Job {
@@ -10,7 +13,12 @@ export interface Job {
 }
 
 export const JOBS: Job[] = [
-	{ name: 'certificate-lifecycle', intervalMs: 60_000, run: (now) => runCertificateLifecycle(now) }
+	{ name: 'certificate-lifecycle', intervalMs: 60_000, run: (now) => runCertificateLifecycle(now) },
+	// Claims rows itself, so it would be safe on every instance; the lease just spaces the runs.
+	{ name: 'mail-send', intervalMs: 30_000, run: (now) => sendPendingMail(now) },
+	{ name: 'mail-reminders', intervalMs: 10 * 60_000, run: (now) => queueExpiryReminders(now) },
+	// Hourly; each lead's digest goes once per plant day from 06:00 plant time (dedupe key).
+	{ name: 'mail-digest', intervalMs: 60 * 60_000, run: (now) => queueLeadDigests(now) }
 ];
 
 /** Runs every job whose lease this instance can take now; errors are recorded, not thrown. */
