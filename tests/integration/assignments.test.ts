@@ -48,9 +48,15 @@ const moveTo = (p: TestPerson, line: number) =>
 	appDb().query('UPDATE people SET line_id = ? WHERE id = ?', [line, p.id]);
 
 const assignmentsOf = (processId: number) =>
-	queryRows<{ person_id: number; scope: string; line_id: number; station_id: number | null }>(
+	queryRows<{
+		id: number;
+		person_id: number;
+		scope: string;
+		line_id: number;
+		station_id: number | null;
+	}>(
 		appDb(),
-		'SELECT person_id, scope, line_id, station_id FROM assignments WHERE process_id = ? AND closed_at IS NULL ORDER BY person_id',
+		'SELECT id, person_id, scope, line_id, station_id FROM assignments WHERE process_id = ? AND closed_at IS NULL ORDER BY person_id',
 		[processId]
 	);
 async function auditCount(action: string) {
@@ -152,6 +158,14 @@ describe('assigning', () => {
 		expect(again).toMatchObject({ assigned: 0, alreadyAssigned: 3 });
 		expect(await assignmentsOf(proc.id)).toHaveLength(3);
 		expect(await auditCount('assignment.created')).toBe(audits + 1);
+
+		// Each assignment queued one message in the same transaction, keyed by the assignment.
+		const queued = await queryRows<{ dedupe_key: string }>(
+			appDb(),
+			"SELECT dedupe_key FROM mail_outbox WHERE kind = 'assignment' AND dedupe_key IN (?)",
+			[(await assignmentsOf(proc.id)).map((a) => `assignment:assignment:${a.id}`)]
+		);
+		expect(queued).toHaveLength(3);
 	});
 
 	it('by station: the people of the station’s line, with the station recorded', async () => {

@@ -1,9 +1,9 @@
 // Certificate pages over HTTP: a holder sees and downloads their own, nobody else's (404 without
 // data); quality sees all and suspends, reinstates, withdraws with a reason, audited old → new.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { and, desc, eq } from 'drizzle-orm';
+import { and, desc, eq, like } from 'drizzle-orm';
 import { db } from '../../src/lib/server/db/index';
-import { auditEvents, certificates } from '../../src/lib/server/db/schema/index';
+import { auditEvents, certificates, mailOutbox } from '../../src/lib/server/db/schema/index';
 import { closeDbHelpers, createTestPerson, retireTestPeople, type TestPerson } from '../helpers/db';
 import { signInAsDemo, signInWithBadge, type HttpClient } from '../helpers/http-session';
 import { insertTestCertificate, type TestCertificate } from '../helpers/certificate-fixtures';
@@ -122,6 +122,12 @@ describe('quality', () => {
 		expect(suspended.oldValues).toEqual({ state: 'active' });
 		expect(suspended.newValues).toEqual({ state: 'suspended' });
 		expect(suspended.reason).toBe('Indentation failures on L2-FOG-03, under review');
+		// The holder (or their lead) is told, through the outbox written in the same transaction.
+		const mail = await db
+			.select({ kind: mailOutbox.kind })
+			.from(mailOutbox)
+			.where(like(mailOutbox.dedupeKey, `suspended:certificate:${cert.id}:%`));
+		expect(mail.map((m) => m.kind)).toEqual(['suspended']);
 
 		const page = await (await holderHttp.get('/certificates')).text();
 		expect(page).toContain('Suspended');

@@ -13,6 +13,7 @@ import {
 	revisions
 } from '../db/schema';
 import { recordAudit, type Actor } from '../audit';
+import { queueSuspensionMail } from '../mail/events';
 import { Refusal } from '../errors';
 import { deriveCertificateStatus } from '../../training/status';
 import type { CertificateState, CertificateStatus } from '../../training/vocabulary';
@@ -309,6 +310,7 @@ export async function changeCertificateState(
 			newValues: { state: next },
 			reason
 		});
+		if (next === 'suspended') await queueSuspensionMail(tx, { certificateId: id, reason, at: now });
 		return { from: c.state, to: next };
 	});
 }

@@ -6,6 +6,7 @@ import { alias } from 'drizzle-orm/mysql-core';
 import { db } from '../db';
 import { assignments, lines, people, processes, stations } from '../db/schema';
 import { recordAudit, type Actor } from '../audit';
+import { queueAssignmentMail } from '../mail/events';
 import { Refusal } from '../errors';
 import type { SessionUser } from '../auth/sessions';
 import type { AssignInput } from '../../schemas/training';
@@ -212,6 +213,19 @@ export async function assignProcess(
 					assignedAt: now
 				}))
 			);
+			// Each new assignment tells its person (or their lead) in the same transaction.
+			const created = await tx
+				.select({ id: assignments.id })
+				.from(assignments)
+				.where(
+					and(
+						eq(assignments.processId, proc.id),
+						inArray(assignments.personId, fresh),
+						isNull(assignments.closedAt),
+						eq(assignments.assignedAt, now)
+					)
+				);
+			for (const a of created) await queueAssignmentMail(tx, { assignmentId: a.id, now });
 			await recordAudit(tx, actor, {
 				action: 'assignment.created',
 				entityType: 'process',
