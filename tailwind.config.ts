@@ -74,8 +74,20 @@ export default {
 				}
 			},
 			fontFamily: {
-				sans: ['"Atkinson Hyperlegible Next"', 'system-ui', 'sans-serif'],
-				mono: ['"Atkinson Hyperlegible Mono"', 'ui-monospace', 'monospace']
+				sans: [
+					'"Atkinson Hyperlegible Next"',
+					'"Noto Sans SC"',
+					'"Noto Sans KR"',
+					'system-ui',
+					'sans-serif'
+				],
+				mono: [
+					'"Atkinson Hyperlegible Mono"',
+					'"Noto Sans SC"',
+					'"Noto Sans KR"',
+					'ui-monospace',
+					'monospace'
+				]
 			},
 			fontSize: {
 				floor: ['1.125rem', { lineHeight: '1.6' }]

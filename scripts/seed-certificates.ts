@@ -11,10 +11,18 @@ import {
 	checklists,
 	checkVersions,
 	people,
+	checklistItems,
 	processes,
 	revisions,
+	signoffItems,
 	signoffs
 } from '../src/lib/server/db/schema/index';
+import { insertSignature } from '../src/lib/server/instructions/signatures';
+import {
+	SIGNOFF_RECORD_TYPE,
+	computeSignoffHash,
+	loadSignoffItems
+} from '../src/lib/server/training/signoffs/signoffs';
 import { recordAudit } from '../src/lib/server/audit/index';
 import { evaluatePerson, rulesInForce } from '../src/lib/server/certificates/evaluate';
 import { evaluateAndIssue } from '../src/lib/server/certificates/issue';
@@ -158,7 +166,13 @@ export async function seedCertificates(): Promise<void> {
  * What a person did to earn a certificate at `at`: acknowledged each instruction's revision in
  * force then, passed the rule's knowledge check, and was observed at the bonder.
  */
+const nameOf = new Map<number, string>();
+
 async function recordEvidence(personId: number, processId: number, at: Date, observerId: number) {
+	if (!nameOf.size) {
+		for (const p of await db.select({ id: people.id, name: people.displayName }).from(people))
+			nameOf.set(p.id, p.name);
+	}
 	const rule = (await rulesInForce([processId], at)).get(processId);
 	if (!rule) throw new Error(`no rule in force for process ${processId} at ${at.toISOString()}`);
 	const ev = await evaluatePerson(personId, processId, at);
@@ -206,17 +220,56 @@ async function recordEvidence(personId: number, processId: number, at: Date, obs
 			.from(checklists)
 			.where(eq(checklists.id, rule.checklistId));
 		const signedAt = new Date(at.getTime() - 10 * 60_000);
-		await db.insert(signoffs).values({
-			personId,
-			checklistId: rule.checklistId,
-			processId,
-			revisionId: list.revisionId,
-			trainerId: observerId,
-			state: 'countersigned',
-			passed: true,
-			createdAt: new Date(signedAt.getTime() - 20 * 60_000),
-			trainerSignedAt: signedAt,
-			operatorSignedAt: signedAt
+		await db.transaction(async (tx) => {
+			const row = {
+				personId,
+				checklistId: rule.checklistId!,
+				processId,
+				revisionId: list.revisionId,
+				stationId: null,
+				trainerId: observerId
+			};
+			const [{ id }] = await tx
+				.insert(signoffs)
+				.values({
+					...row,
+					state: 'draft',
+					createdAt: new Date(signedAt.getTime() - 20 * 60_000)
+				})
+				.$returningId();
+			const steps = await tx
+				.select({ id: checklistItems.id })
+				.from(checklistItems)
+				.where(eq(checklistItems.checklistId, rule.checklistId!));
+			await tx
+				.insert(signoffItems)
+				.values(steps.map((s) => ({ signoffId: id, itemId: s.id, result: 'pass' as const })));
+			// Both signatures bound to the same content hash the sign-off page verifies.
+			const contentHash = computeSignoffHash({ id, ...row }, await loadSignoffItems(id, tx));
+			await tx
+				.update(signoffs)
+				.set({
+					state: 'countersigned',
+					passed: true,
+					contentHash,
+					trainerSignedAt: signedAt,
+					operatorSignedAt: signedAt
+				})
+				.where(eq(signoffs.id, id));
+			for (const [signerId, meaning] of [
+				[observerId, 'observed'],
+				[personId, 'countersigned']
+			] as const) {
+				await insertSignature(tx, {
+					recordType: SIGNOFF_RECORD_TYPE,
+					recordId: id,
+					signerId,
+					printedName: nameOf.get(signerId) ?? '',
+					meaning,
+					contentHash,
+					signedAt
+				});
+			}
 		});
 	}
 }

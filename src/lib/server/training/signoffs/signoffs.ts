@@ -177,7 +177,7 @@ async function loadSignoff(id: number, conn: DbOrTx = db, lock = false) {
 	return s ?? null;
 }
 
-async function loadItems(signoffId: number, conn: DbOrTx = db) {
+export async function loadSignoffItems(signoffId: number, conn: DbOrTx = db) {
 	return conn
 		.select({
 			itemId: signoffItems.itemId,
@@ -204,7 +204,7 @@ export function computeSignoffHash(
 		typeof signoffs.$inferSelect,
 		'id' | 'personId' | 'trainerId' | 'checklistId' | 'revisionId' | 'stationId'
 	>,
-	items: Awaited<ReturnType<typeof loadItems>>
+	items: Awaited<ReturnType<typeof loadSignoffItems>>
 ): string {
 	const body = {
 		signoffId: s.id,
@@ -251,7 +251,7 @@ export async function getSignoffForViewer(viewer: Viewer, id: number) {
 		.innerJoin(checklists, eq(checklists.id, signoffs.checklistId))
 		.leftJoin(stations, eq(stations.id, signoffs.stationId))
 		.where(eq(signoffs.id, id));
-	const items = await loadItems(id);
+	const items = await loadSignoffItems(id);
 	const sigs = await db
 		.select({
 			printedName: signatures.printedName,
@@ -378,7 +378,7 @@ export async function signSignoff(
 		throw new Refusal(403, 'Only the trainer who observed can sign this sign-off.');
 	if (s.state !== 'draft') throw new Refusal(409, 'This sign-off is already signed.');
 	await assertMayObserve(actor.id, s.personId, s.processId);
-	const open = (await loadItems(signoffId)).filter((i) => !i.result).length;
+	const open = (await loadSignoffItems(signoffId)).filter((i) => !i.result).length;
 	if (open)
 		throw new Refusal(
 			400,
@@ -394,7 +394,7 @@ export async function signSignoff(
 		const locked = await loadSignoff(signoffId, tx, true);
 		if (!locked || locked.state !== 'draft')
 			throw new Refusal(409, 'This sign-off is already signed.');
-		const items = await loadItems(signoffId, tx);
+		const items = await loadSignoffItems(signoffId, tx);
 		if (items.some((i) => !i.result)) throw new Refusal(400, 'Mark every step first.');
 		const passed = items.every((i) => i.result === 'pass');
 		const contentHash = computeSignoffHash(locked, items);
@@ -451,7 +451,7 @@ export async function countersignSignoff(
 		const locked = await loadSignoff(signoffId, tx, true);
 		if (!locked || locked.state !== 'trainer_signed')
 			throw new Refusal(409, 'This sign-off is not waiting for your countersignature.');
-		const contentHash = computeSignoffHash(locked, await loadItems(signoffId, tx));
+		const contentHash = computeSignoffHash(locked, await loadSignoffItems(signoffId, tx));
 		if (contentHash !== locked.contentHash)
 			throw new Refusal(
 				409,
