@@ -65,7 +65,10 @@ export async function findStationByCode(code: string) {
 	return s ?? null;
 }
 
-async function loadAndDecide(req: GateRequest, now: Date) {
+/** Who is asking: a badge as scanned, or (for checks made by Padbridge itself) a person's id. */
+type Subject = { station: string; badge?: string; personId?: number };
+
+async function loadAndDecide(req: Subject, now: Date) {
 	const supervisor = alias(people, 'supervisor');
 	const [stationRow] = await db
 		.select({ id: stations.id, code: stations.code, active: stations.active })
@@ -91,7 +94,11 @@ async function loadAndDecide(req: GateRequest, now: Date) {
 				})
 				.from(people)
 				.leftJoin(sites, eq(sites.id, people.siteId))
-				.where(eq(people.badgeNo, req.badge))
+				.where(
+					req.badge !== undefined
+						? eq(people.badgeNo, req.badge)
+						: eq(people.id, req.personId ?? -1)
+				)
 		: [];
 	const zone = personRow?.timeZone ?? config.plantTimeZone;
 	const certs =
@@ -158,6 +165,22 @@ async function loadAndDecide(req: GateRequest, now: Date) {
 		supervisedRun: run ?? null
 	});
 	return { decision, stationId: stationRow?.id ?? null, person: personRow ?? null };
+}
+
+/**
+ * The gate's decision for a person (by id) at a station, without logging it: for checks Padbridge
+ * makes itself, such as whether a supervisor is qualified. Throws when the database cannot answer.
+ */
+export async function evaluateStationAccess(
+	stationCode: string,
+	personId: number,
+	now: Date = new Date()
+): Promise<GateDecision> {
+	const r = await withTimeout(
+		loadAndDecide({ station: stationCode, personId }, now),
+		config.gateTimeoutMs
+	);
+	return r.decision;
 }
 
 /** 00:00 in the plant's zone on the day after `date`. */
