@@ -40,6 +40,7 @@ test.afterAll(async () => {
 test('pair the kiosk, scan a badge with Enter, see ALLOW, see it clear', async ({ page }) => {
 	await page.goto(`/stations/${station.code}/gate`);
 	await expect(page.getByRole('heading', { name: 'Pair this terminal' })).toBeVisible();
+	await page.screenshot({ path: 'test-results/kiosk-pair.png' });
 	await page.getByLabel('Station gate API key').fill(key);
 	await page.getByRole('button', { name: 'Pair terminal' }).click();
 
@@ -53,6 +54,7 @@ test('pair the kiosk, scan a badge with Enter, see ALLOW, see it clear', async (
 	await expect(panel).toHaveAttribute('data-decision', 'allow');
 	await expect(panel).toContainText('ALLOW');
 	await expect(panel.getByText(operator.displayName)).toBeVisible();
+	await page.screenshot({ path: 'test-results/kiosk-allow.png', fullPage: true });
 	// The input is empty and keeps the focus for the next person.
 	await expect(badge).toHaveValue('');
 	await expect(badge).toBeFocused();
@@ -62,4 +64,21 @@ test('pair the kiosk, scan a badge with Enter, see ALLOW, see it clear', async (
 
 	await page.getByRole('button', { name: 'Unpair terminal' }).click();
 	await expect(page.getByRole('heading', { name: 'Pair this terminal' })).toBeVisible();
+});
+
+test('a line lead sees the supervised-runs page with the grant form', async ({ page }) => {
+	await page.goto('/signin');
+	await page.getByRole('tab', { name: 'E-mail + password' }).click();
+	await page.getByLabel('E-mail', { exact: true }).fill('lead.l1@kbo2.example');
+	await page.getByLabel('Password', { exact: true }).fill('kestrel-bay-demo-2026');
+	await page.getByRole('button', { name: 'Sign in' }).last().click();
+	await expect(page).not.toHaveURL(/\/signin/);
+	await page.getByRole('link', { name: 'Supervised runs' }).first().click();
+	await expect(page.getByRole('heading', { name: 'Supervised runs' })).toBeVisible();
+	// Nothing chosen: field errors, and the reason typed stays in the form.
+	await page.getByLabel('Reason').fill('New FOG head fitted');
+	await page.getByRole('button', { name: 'Grant supervised run' }).click();
+	await expect(page.getByText('Choose the person who will run the station.')).toBeVisible();
+	await expect(page.getByLabel('Reason')).toHaveValue('New FOG head fitted');
+	await page.screenshot({ path: 'test-results/supervised-runs.png', fullPage: true });
 });

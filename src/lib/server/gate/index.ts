@@ -44,13 +44,16 @@ export interface GateAnswer extends GateDecision {
 export class GateTimeout extends Error {}
 
 /** Resolves with `work`, or rejects with GateTimeout after `ms`. */
-export function withTimeout<T>(work: Promise<T>, ms: number): Promise<T> {
+export function withTimeout<T>(work: PromiseLike<T>, ms: number): Promise<T> {
 	let timer: NodeJS.Timeout;
 	const timeout = new Promise<never>((_, reject) => {
 		timer = setTimeout(() => reject(new GateTimeout(`no answer within ${ms} ms`)), ms);
 	});
-	work.catch(() => {}); // a late failure after the timeout is not anyone's business
-	return Promise.race([work, timeout]).finally(() => clearTimeout(timer));
+	// Drizzle queries are lazy thenables that run on every then(): settle them exactly once here,
+	// or the catch below and the race would each run the query (and log a gate check twice).
+	const once = Promise.resolve(work);
+	once.catch(() => {}); // a late failure after the timeout is not anyone's business
+	return Promise.race([once, timeout]).finally(() => clearTimeout(timer));
 }
 
 /** The station's id and active flag by code (for key binding checks), under the gate timeout. */
