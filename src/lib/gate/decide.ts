@@ -3,21 +3,25 @@
 // can show it; anything short of a clean "allow" is a deny.
 import type { CertificateStatus } from '../training/vocabulary';
 
-export type GateReasonCode =
-	| 'unavailable'
-	| 'unknown_station'
-	| 'station_inactive'
-	| 'unknown_badge'
-	| 'inactive_person'
-	| 'contract_ended'
-	| 'missing'
-	| 'expired'
-	| 'suspended'
-	| 'withdrawn'
-	| 'retraining_overdue'
-	| 'supervised';
+/** Every reason a decision can carry; the API docs and the OpenAPI file list each of them. */
+export const GATE_REASON_CODES = [
+	'unavailable',
+	'unknown_station',
+	'station_inactive',
+	'unknown_badge',
+	'inactive_person',
+	'contract_ended',
+	'missing',
+	'expired',
+	'suspended',
+	'withdrawn',
+	'retraining_overdue',
+	'supervised'
+] as const;
+export type GateReasonCode = (typeof GATE_REASON_CODES)[number];
 
-export type GateWarningCode = 'expiring' | 'retraining_due' | 'contract_ending';
+export const GATE_WARNING_CODES = ['expiring', 'retraining_due', 'contract_ending'] as const;
+export type GateWarningCode = (typeof GATE_WARNING_CODES)[number];
 
 export interface GateReason {
 	code: GateReasonCode;

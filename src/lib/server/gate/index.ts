@@ -44,13 +44,16 @@ export interface GateAnswer extends GateDecision {
 export class GateTimeout extends Error {}
 
 /** Resolves with `work`, or rejects with GateTimeout after `ms`. */
-export function withTimeout<T>(work: Promise<T>, ms: number): Promise<T> {
+export function withTimeout<T>(work: PromiseLike<T>, ms: number): Promise<T> {
 	let timer: NodeJS.Timeout;
 	const timeout = new Promise<never>((_, reject) => {
 		timer = setTimeout(() => reject(new GateTimeout(`no answer within ${ms} ms`)), ms);
 	});
-	work.catch(() => {}); // a late failure after the timeout is not anyone's business
-	return Promise.race([work, timeout]).finally(() => clearTimeout(timer));
+	// Drizzle queries are lazy thenables that run on every then(): settle them exactly once here,
+	// or the catch below and the race would each run the query (and log a gate check twice).
+	const once = Promise.resolve(work);
+	once.catch(() => {}); // a late failure after the timeout is not anyone's business
+	return Promise.race([once, timeout]).finally(() => clearTimeout(timer));
 }
 
 /** The station's id and active flag by code (for key binding checks), under the gate timeout. */
@@ -65,7 +68,10 @@ export async function findStationByCode(code: string) {
 	return s ?? null;
 }
 
-async function loadAndDecide(req: GateRequest, now: Date) {
+/** Who is asking: a badge as scanned, or (for checks made by Padbridge itself) a person's id. */
+type Subject = { station: string; badge?: string; personId?: number };
+
+async function loadAndDecide(req: Subject, now: Date) {
 	const supervisor = alias(people, 'supervisor');
 	const [stationRow] = await db
 		.select({ id: stations.id, code: stations.code, active: stations.active })
@@ -91,7 +97,11 @@ async function loadAndDecide(req: GateRequest, now: Date) {
 				})
 				.from(people)
 				.leftJoin(sites, eq(sites.id, people.siteId))
-				.where(eq(people.badgeNo, req.badge))
+				.where(
+					req.badge !== undefined
+						? eq(people.badgeNo, req.badge)
+						: eq(people.id, req.personId ?? -1)
+				)
 		: [];
 	const zone = personRow?.timeZone ?? config.plantTimeZone;
 	const certs =
@@ -158,6 +168,22 @@ async function loadAndDecide(req: GateRequest, now: Date) {
 		supervisedRun: run ?? null
 	});
 	return { decision, stationId: stationRow?.id ?? null, person: personRow ?? null };
+}
+
+/**
+ * The gate's decision for a person (by id) at a station, without logging it: for checks Padbridge
+ * makes itself, such as whether a supervisor is qualified. Throws when the database cannot answer.
+ */
+export async function evaluateStationAccess(
+	stationCode: string,
+	personId: number,
+	now: Date = new Date()
+): Promise<GateDecision> {
+	const r = await withTimeout(
+		loadAndDecide({ station: stationCode, personId }, now),
+		config.gateTimeoutMs
+	);
+	return r.decision;
 }
 
 /** 00:00 in the plant's zone on the day after `date`. */

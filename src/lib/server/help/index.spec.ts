@@ -10,7 +10,8 @@ describe('help pages', () => {
 			'calculator-blocks',
 			'safety',
 			'terminals',
-			'certification'
+			'certification',
+			'station-gate'
 		]);
 		for (const page of pages) {
 			expect(page.title.length).toBeGreaterThan(5);
