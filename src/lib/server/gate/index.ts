@@ -31,6 +31,8 @@ export interface GateRequest {
 	badge: string;
 	source: 'api' | 'kiosk';
 	apiKeyId?: number | null;
+	/** A station-bound key may only ask for its own station: anything else is refused, unlogged. */
+	keyStationId?: number | null;
 }
 
 export interface GateAnswer extends GateDecision {
@@ -39,6 +41,8 @@ export interface GateAnswer extends GateDecision {
 	checkedAt: Date;
 	/** The gate log row, when it could be written. */
 	logId: number | null;
+	/** Set when a station-bound key asked for another station (no decision was made). */
+	wrongStation?: true;
 }
 
 export class GateTimeout extends Error {}
@@ -71,83 +75,89 @@ export async function findStationByCode(code: string) {
 /** Who is asking: a badge as scanned, or (for checks made by Padbridge itself) a person's id. */
 type Subject = { station: string; badge?: string; personId?: number };
 
+/**
+ * Everything a decision needs, in one round of four queries run side by side: the station with
+ * its processes, the person, the person's certificates for the station's processes, and a
+ * supervised run in force (the last two join on the badge and the station code themselves, so
+ * none waits for another).
+ */
 async function loadAndDecide(req: Subject, now: Date) {
 	const supervisor = alias(people, 'supervisor');
-	const [stationRow] = await db
-		.select({ id: stations.id, code: stations.code, active: stations.active })
-		.from(stations)
-		.where(eq(stations.code, req.station));
-	const procs = stationRow
-		? await db
-				.select({ id: processes.id, code: processes.code, name: processes.name })
-				.from(stationProcesses)
-				.innerJoin(processes, eq(processes.id, stationProcesses.processId))
-				.where(eq(stationProcesses.stationId, stationRow.id))
-		: [];
-	const [personRow] = stationRow
-		? await db
-				.select({
-					id: people.id,
-					displayName: people.displayName,
-					employeeNo: people.employeeNo,
-					active: people.active,
-					employmentType: people.employmentType,
-					contractEndsOn: people.contractEndsOn,
-					timeZone: sites.timeZone
-				})
-				.from(people)
-				.leftJoin(sites, eq(sites.id, people.siteId))
-				.where(
-					req.badge !== undefined
-						? eq(people.badgeNo, req.badge)
-						: eq(people.id, req.personId ?? -1)
+	const who =
+		req.badge !== undefined ? eq(people.badgeNo, req.badge) : eq(people.id, req.personId ?? -1);
+	const [stationRows, [personRow], certs, [run]] = await Promise.all([
+		db
+			.select({
+				id: stations.id,
+				code: stations.code,
+				active: stations.active,
+				processId: processes.id,
+				processCode: processes.code,
+				processName: processes.name
+			})
+			.from(stations)
+			.leftJoin(stationProcesses, eq(stationProcesses.stationId, stations.id))
+			.leftJoin(processes, eq(processes.id, stationProcesses.processId))
+			.where(eq(stations.code, req.station)),
+		db
+			.select({
+				id: people.id,
+				displayName: people.displayName,
+				employeeNo: people.employeeNo,
+				active: people.active,
+				employmentType: people.employmentType,
+				contractEndsOn: people.contractEndsOn,
+				timeZone: sites.timeZone
+			})
+			.from(people)
+			.leftJoin(sites, eq(sites.id, people.siteId))
+			.where(who),
+		db
+			.select({
+				processId: certificates.processId,
+				number: certificates.number,
+				state: certificates.state,
+				expiresAt: certificates.expiresAt,
+				graceUntil: certificates.graceUntil,
+				reminderDays: certificationRules.reminderDays
+			})
+			.from(certificates)
+			.innerJoin(people, and(eq(people.id, certificates.personId), who))
+			.innerJoin(certificationRules, eq(certificationRules.id, certificates.ruleId))
+			.innerJoin(stationProcesses, eq(stationProcesses.processId, certificates.processId))
+			.innerJoin(
+				stations,
+				and(eq(stations.id, stationProcesses.stationId), eq(stations.code, req.station))
+			),
+		db
+			.select({
+				id: supervisedRuns.id,
+				endsAt: supervisedRuns.endsAt,
+				supervisorName: supervisor.displayName
+			})
+			.from(supervisedRuns)
+			.innerJoin(people, and(eq(people.id, supervisedRuns.personId), who))
+			.innerJoin(
+				stations,
+				and(eq(stations.id, supervisedRuns.stationId), eq(stations.code, req.station))
+			)
+			.innerJoin(supervisor, eq(supervisor.id, supervisedRuns.supervisorId))
+			.where(
+				and(
+					isNull(supervisedRuns.revokedAt),
+					lte(supervisedRuns.startsAt, now),
+					gt(supervisedRuns.endsAt, now)
 				)
-		: [];
+			)
+			.limit(1)
+	]);
+	const stationRow = stationRows[0]
+		? { id: stationRows[0].id, code: stationRows[0].code, active: stationRows[0].active }
+		: null;
+	const procs = stationRows
+		.filter((r) => r.processId != null)
+		.map((r) => ({ id: r.processId!, code: r.processCode!, name: r.processName! }));
 	const zone = personRow?.timeZone ?? config.plantTimeZone;
-	const certs =
-		personRow && procs.length
-			? await db
-					.select({
-						processId: certificates.processId,
-						number: certificates.number,
-						state: certificates.state,
-						expiresAt: certificates.expiresAt,
-						graceUntil: certificates.graceUntil,
-						reminderDays: certificationRules.reminderDays
-					})
-					.from(certificates)
-					.innerJoin(certificationRules, eq(certificationRules.id, certificates.ruleId))
-					.where(
-						and(
-							eq(certificates.personId, personRow.id),
-							inArray(
-								certificates.processId,
-								procs.map((p) => p.id)
-							)
-						)
-					)
-			: [];
-	const [run] =
-		personRow && stationRow
-			? await db
-					.select({
-						id: supervisedRuns.id,
-						endsAt: supervisedRuns.endsAt,
-						supervisorName: supervisor.displayName
-					})
-					.from(supervisedRuns)
-					.innerJoin(supervisor, eq(supervisor.id, supervisedRuns.supervisorId))
-					.where(
-						and(
-							eq(supervisedRuns.personId, personRow.id),
-							eq(supervisedRuns.stationId, stationRow.id),
-							isNull(supervisedRuns.revokedAt),
-							lte(supervisedRuns.startsAt, now),
-							gt(supervisedRuns.endsAt, now)
-						)
-					)
-					.limit(1)
-			: [];
 	// A contract ends at the end of its last day: 00:00 of the next plant day.
 	const contractEndsAt = personRow?.contractEndsOn
 		? nextPlantMidnight(personRow.contractEndsOn, zone)
@@ -248,6 +258,19 @@ export async function checkStationAccess(
 	let person: { id: number; displayName: string; employeeNo: string } | null = null;
 	try {
 		const r = await withTimeout(loadAndDecide(req, now), config.gateTimeoutMs);
+		if (req.keyStationId != null && r.stationId !== req.keyStationId) {
+			return {
+				decision: 'deny',
+				reasons: [],
+				warnings: [],
+				validUntil: null,
+				station: req.station,
+				person: null,
+				checkedAt: now,
+				logId: null,
+				wrongStation: true
+			};
+		}
 		decision = r.decision;
 		stationId = r.stationId;
 		person = r.person;

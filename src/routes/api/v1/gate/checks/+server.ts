@@ -1,11 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { verifyApiKey } from '$lib/server/apikeys';
-import {
-	checkStationAccess,
-	findStationByCode,
-	recordUnavailable,
-	withTimeout
-} from '$lib/server/gate';
+import { checkStationAccess, recordUnavailable, withTimeout } from '$lib/server/gate';
 import { config } from '$lib/server/config';
 import { fieldErrors, readJson } from '$lib/server/api';
 import { gateCheckSchema } from '$lib/schemas/gate';
@@ -48,22 +43,18 @@ export const POST: RequestHandler = async (event) => {
 			{ status: 400 }
 		);
 	}
-	if (key.stationId != null) {
-		let station;
-		try {
-			station = await findStationByCode(parsed.data.station);
-		} catch {
-			recordUnavailable({ ...parsed.data, source: 'api', apiKeyId: key.id });
-			return json(UNAVAILABLE, { status: 503 });
-		}
-		if (!station || station.id !== key.stationId) {
-			return json(
-				{ error: `This key belongs to another station; it cannot ask for ${parsed.data.station}.` },
-				{ status: 403 }
-			);
-		}
+	const answer = await checkStationAccess({
+		...parsed.data,
+		source: 'api',
+		apiKeyId: key.id,
+		keyStationId: key.stationId
+	});
+	if (answer.wrongStation) {
+		return json(
+			{ error: `This key belongs to another station; it cannot ask for ${parsed.data.station}.` },
+			{ status: 403 }
+		);
 	}
-	const answer = await checkStationAccess({ ...parsed.data, source: 'api', apiKeyId: key.id });
 	const unavailable = answer.reasons[0]?.code === 'unavailable';
 	return json(
 		{
