@@ -55,8 +55,8 @@ await conn.query(
 	`INSERT INTO certificates (number, person_id, process_id, rule_id, state, issued_at, expires_at, signer_name, signer_role, verify_token_hash, grace_until)
 	 SELECT CONCAT('B-', p.seq, '-', r.seq), p.seq, r.seq, r.seq,
 	   ELT(1 + (p.seq + r.seq) % 10, 'active','active','active','active','active','active','retraining_due','expired','suspended','active'),
-	   ?, DATE_ADD(?, INTERVAL ((p.seq * 7 + r.seq * 13) % 400) - 20 DAY), 'Bench', 'Quality',
-	   SHA2(CONCAT(p.seq, '-', r.seq), 256), DATE_ADD(?, INTERVAL ((p.seq + r.seq) % 20) - 5 DAY)
+	   ?, DATE_ADD(?, INTERVAL CAST((p.seq * 7 + r.seq * 13) % 400 AS SIGNED) - 20 DAY), 'Bench', 'Quality',
+	   SHA2(CONCAT(p.seq, '-', r.seq), 256), DATE_ADD(?, INTERVAL CAST((p.seq + r.seq) % 20 AS SIGNED) - 5 DAY)
 	 FROM seq_1_to_${PEOPLE} p JOIN seq_1_to_${PROCESSES} r WHERE (p.seq + 2 * r.seq) % 5 <> 0`,
 	[at(-200), new Date(now), new Date(now)]
 );

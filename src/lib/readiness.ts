@@ -28,7 +28,7 @@ export const READINESS_GLYPHS: Record<ReadinessState, string> = {
 	expiring: '◷',
 	grace: '⚠',
 	expired: '✖',
-	suspended: '⛔',
+	suspended: '‖',
 	in_training: '◐',
 	none: '–'
 };

@@ -6,7 +6,13 @@ import { localDate } from '../../time';
 import type { ReadinessBoard } from './index';
 
 export function readinessCsv(board: ReadinessBoard): string {
-	const day = (iso: string) => localDate(new Date(iso), board.timeZone);
+	// Expiry instants repeat across thousands of cells; a formatter per call would dominate.
+	const days = new Map<string, string>();
+	const day = (iso: string) => {
+		let d = days.get(iso);
+		if (d === undefined) days.set(iso, (d = localDate(new Date(iso), board.timeZone)));
+		return d;
+	};
 	const header = ['name', 'employee_no', 'shift', 'agency', 'agency_name'];
 	for (const p of board.processes) header.push(p.code, `${p.code} expires_on`);
 	let out = CSV_BOM + csvRow(header);
