@@ -6,15 +6,7 @@
 // run: the bare SQL that reads the same rows (acknowledgements joined to effective revisions; the
 // certificates to move) with no application logic. Data lives in a scratch database on the dev
 // MariaDB, dropped at the end. Usage: npm run bench:certificates:evaluate
-import mysql from 'mysql2/promise';
-import {
-	dbUrls,
-	ensureDatabase,
-	modeConfig,
-	startMariadb,
-	stopMariadb
-} from '../../scripts/lib.js';
-import { applyMigrations } from '../../scripts/migrate.js';
+import { openScratch, timeMedian } from '../lib/scratch';
 
 const PEOPLE = 2000;
 const PROCESSES = 30;
@@ -22,22 +14,9 @@ const RUNS = 5;
 const SCRATCH = 'padbridge_scratch_eval';
 const DAY = 86_400_000;
 
-const cfg = modeConfig('dev');
-const maria = await startMariadb(cfg);
-ensureDatabase(cfg);
-const ownerBase = dbUrls(cfg).owner;
-const scratchUrl = ownerBase.replace(/\/[^/]+$/, `/${SCRATCH}`);
-const admin = await mysql.createConnection({ uri: ownerBase });
-await admin.query(`DROP DATABASE IF EXISTS \`${SCRATCH}\``);
-await admin.query(
-	`CREATE DATABASE \`${SCRATCH}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`
-);
-await applyMigrations(scratchUrl);
-const conn = await mysql.createConnection({
-	uri: scratchUrl,
-	timezone: 'Z',
-	multipleStatements: true
-});
+const scratch = await openScratch(SCRATCH);
+const scratchUrl = scratch.url;
+const conn = scratch.conn;
 
 const now = Date.now();
 const at = (daysFromNow: number) => new Date(now + daysFromNow * DAY);
@@ -103,17 +82,7 @@ const { runCertificateLifecycle } = await import('../../src/lib/server/certifica
 const { pool } = await import('../../src/lib/server/db/index');
 
 const personIds = Array.from({ length: PEOPLE }, (_, i) => i + 1);
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
-async function time(fn: () => Promise<unknown>, runs = RUNS) {
-	await fn();
-	const ts: number[] = [];
-	for (let i = 0; i < runs; i++) {
-		const s = performance.now();
-		await fn();
-		ts.push(performance.now() - s);
-	}
-	return median(ts);
-}
+const time = (fn: () => Promise<unknown>, runs = RUNS) => timeMedian(fn, runs);
 
 const before = new Date(switchAt.getTime() - 1);
 let cells = 0;
@@ -180,7 +149,4 @@ console.log(
 );
 
 await pool.end();
-await conn.end();
-await admin.query(`DROP DATABASE IF EXISTS \`${SCRATCH}\``);
-await admin.end();
-if (maria.started) stopMariadb(cfg);
+await scratch.close();

@@ -22,6 +22,7 @@ export const NAV: NavItem[] = [
 	{ href: '/rules', label: 'Certification rules', roles: ['quality', 'admin'] },
 	{ href: '/assignments', label: 'Assignments', roles: ['quality', 'trainer', 'lead', 'admin'] },
 	{ href: '/crew', label: 'Crew', roles: ['lead', 'quality', 'admin'] },
+	{ href: '/readiness', label: 'Readiness board', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/supervised-runs', label: 'Supervised runs', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
