@@ -5,6 +5,11 @@ import { defineConfig } from 'vitest/config';
 export default defineConfig({
 	plugins: [tailwindcss(), sveltekit()],
 	server: { host: '127.0.0.1' },
+	build: {
+		// Small font slices would otherwise be inlined as data: URIs, which the CSP (font-src
+		// 'self') rightly refuses; every font is served as its own file.
+		assetsInlineLimit: (file: string) => (/\.(woff2?|ttf|otf)$/.test(file) ? false : undefined)
+	},
 	test: {
 		projects: [
 			{

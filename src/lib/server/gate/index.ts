@@ -1,7 +1,7 @@
 // The station gate: may this badge run this station now? Loads what decideGate needs in a few
 // queries under a short timeout. Whenever the database cannot answer in time the answer is deny
 // with reason `unavailable`: the gate fails closed, and recovers by itself with the pool.
-import { and, eq, gt, inArray, isNull, lte } from 'drizzle-orm';
+import { and, eq, gt, isNull, lte } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
 import { db } from '../db';
 import {
