@@ -43,6 +43,8 @@ export interface GateAnswer extends GateDecision {
 	logId: number | null;
 	/** Set when a station-bound key asked for another station (no decision was made). */
 	wrongStation?: true;
+	/** Set when the API key given to checkStationAccess was not valid (no decision was made). */
+	unauthorized?: true;
 }
 
 export class GateTimeout extends Error {}
@@ -248,28 +250,42 @@ export function recordUnavailable(req: GateRequest, now: Date = new Date()) {
 export const unloggedGateDecisions = () => unlogged.length;
 
 /** Decides and logs one gate check. Never throws: any failure is a deny with a reason. */
+/**
+ * Decides and logs one gate check. Never throws: any failure is a deny with a reason. With
+ * `keyCheck` (the caller's API key being verified) the key lookup runs beside the decision's own
+ * queries in the same round trip; an unknown key gets `unauthorized` and nothing is logged.
+ */
 export async function checkStationAccess(
 	req: GateRequest,
-	now: Date = new Date()
+	now: Date = new Date(),
+	keyCheck?: PromiseLike<{ id: number; stationId: number | null } | null>
 ): Promise<GateAnswer> {
 	const started = performance.now();
 	let decision: GateDecision;
 	let stationId: number | null = null;
 	let person: { id: number; displayName: string; employeeNo: string } | null = null;
+	const refused = (flag: 'wrongStation' | 'unauthorized'): GateAnswer => ({
+		decision: 'deny',
+		reasons: [],
+		warnings: [],
+		validUntil: null,
+		station: req.station,
+		person: null,
+		checkedAt: now,
+		logId: null,
+		[flag]: true
+	});
 	try {
-		const r = await withTimeout(loadAndDecide(req, now), config.gateTimeoutMs);
+		const [r, key] = await withTimeout(
+			Promise.all([loadAndDecide(req, now), keyCheck ?? null]),
+			config.gateTimeoutMs
+		);
+		if (keyCheck) {
+			if (!key) return refused('unauthorized');
+			req = { ...req, apiKeyId: key.id, keyStationId: key.stationId };
+		}
 		if (req.keyStationId != null && r.stationId !== req.keyStationId) {
-			return {
-				decision: 'deny',
-				reasons: [],
-				warnings: [],
-				validUntil: null,
-				station: req.station,
-				person: null,
-				checkedAt: now,
-				logId: null,
-				wrongStation: true
-			};
+			return refused('wrongStation');
 		}
 		decision = r.decision;
 		stationId = r.stationId;

@@ -1,6 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { verifyApiKey } from '$lib/server/apikeys';
-import { checkStationAccess, recordUnavailable, withTimeout } from '$lib/server/gate';
+import { checkStationAccess, withTimeout } from '$lib/server/gate';
 import { config } from '$lib/server/config';
 import { fieldErrors, readJson } from '$lib/server/api';
 import { gateCheckSchema } from '$lib/schemas/gate';
@@ -14,41 +14,39 @@ const UNAVAILABLE = {
 	validUntil: null
 } as const;
 
+const noKey = () =>
+	json(
+		{ error: 'A valid station gate API key is required: Authorization: Bearer pbk_…' },
+		{ status: 401, headers: { 'WWW-Authenticate': 'Bearer' } }
+	);
+
 /** May this badge run this station now? Station API key required; fails closed. */
 export const POST: RequestHandler = async (event) => {
+	const authorization = event.request.headers.get('authorization');
 	const body = await readJson(event.request);
-	let key;
-	try {
-		key = await withTimeout(
-			verifyApiKey(event.request.headers.get('authorization'), 'gate'),
-			config.gateTimeoutMs
-		);
-	} catch {
-		// Not even the key could be checked: deny, and keep the decision for the log.
-		const asked = body.ok ? gateCheckSchema.safeParse(body.value) : null;
-		if (asked?.success) recordUnavailable({ ...asked.data, source: 'api' });
-		return json(UNAVAILABLE, { status: 503 });
-	}
-	if (!key) {
+	const parsed = body.ok ? gateCheckSchema.safeParse(body.value) : null;
+	if (!parsed?.success) {
+		// A malformed request is answered only once the key is known to be good.
+		let key;
+		try {
+			key = await withTimeout(verifyApiKey(authorization, 'gate'), config.gateTimeoutMs);
+		} catch {
+			return json(UNAVAILABLE, { status: 503 });
+		}
+		if (!key) return noKey();
+		if (!body.ok) return json({ error: body.error }, { status: body.status });
 		return json(
-			{ error: 'A valid station gate API key is required: Authorization: Bearer pbk_…' },
-			{ status: 401, headers: { 'WWW-Authenticate': 'Bearer' } }
-		);
-	}
-	if (!body.ok) return json({ error: body.error }, { status: body.status });
-	const parsed = gateCheckSchema.safeParse(body.value);
-	if (!parsed.success) {
-		return json(
-			{ error: 'Check the request fields.', fields: fieldErrors(parsed.error) },
+			{ error: 'Check the request fields.', fields: fieldErrors(parsed!.error) },
 			{ status: 400 }
 		);
 	}
-	const answer = await checkStationAccess({
-		...parsed.data,
-		source: 'api',
-		apiKeyId: key.id,
-		keyStationId: key.stationId
-	});
+	// The key is verified in the same round trip as the decision's own reads.
+	const answer = await checkStationAccess(
+		{ ...parsed.data, source: 'api' },
+		new Date(),
+		verifyApiKey(authorization, 'gate')
+	);
+	if (answer.unauthorized) return noKey();
 	if (answer.wrongStation) {
 		return json(
 			{ error: `This key belongs to another station; it cannot ask for ${parsed.data.station}.` },
