@@ -11,6 +11,7 @@ import { exportAuditCsv } from '../../src/lib/server/audit/export';
 import { createPerson, setPersonActive } from '../../src/lib/server/people';
 import { createLine, setPlantActive } from '../../src/lib/server/plant';
 import { personSchema } from '../../src/lib/schemas/people';
+import { parseCsv } from '../helpers/csv-parse';
 
 const RUN = Date.now().toString(36).slice(-5).toUpperCase();
 const LINE = `X${RUN}`;
@@ -24,36 +25,6 @@ const EVIL_REASONS = [
 	'plain, with "quotes"'
 ];
 const APP = process.env.TEST_APP_URL ?? 'http://127.0.0.1:3100';
-
-/** RFC 4180 parser, written out here so the test does not trust the code it checks. */
-function parseCsv(text: string): string[][] {
-	const rows: string[][] = [];
-	let row: string[] = [];
-	let cell = '';
-	let quoted = false;
-	for (let i = 0; i < text.length; i++) {
-		const c = text[i];
-		if (quoted) {
-			if (c === '"' && text[i + 1] === '"') {
-				cell += '"';
-				i++;
-			} else if (c === '"') quoted = false;
-			else cell += c;
-		} else if (c === '"' && cell === '') quoted = true;
-		else if (c === ',') {
-			row.push(cell);
-			cell = '';
-		} else if (c === '\r' && text[i + 1] === '\n') {
-			row.push(cell);
-			rows.push(row);
-			row = [];
-			cell = '';
-			i++;
-		} else cell += c;
-	}
-	if (cell !== '' || row.length) throw new Error('the CSV does not end with CRLF');
-	return rows;
-}
 
 /** The bytes as text, keeping a BOM (Response.text() would drop it silently). */
 async function readAll(stream: ReadableStream<Uint8Array>): Promise<string> {

@@ -27,6 +27,7 @@ import {
 import { createApiKey } from '../../src/lib/server/apikeys';
 import { pool } from '../../src/lib/server/db';
 import type { ReadinessBoard } from '../../src/lib/server/readiness';
+import { parseCsv } from '../helpers/csv-parse';
 
 const DAY = 86_400_000;
 const INJECTED = '=HYPERLINK("http://example.invalid","open me")';
@@ -291,33 +292,3 @@ describe('readiness board: refusals', () => {
 		expect((await board(quality, 'line=L2')).status).toBe(200);
 	});
 });
-
-/** RFC 4180 records: quoted fields with doubled quotes, CRLF line ends. */
-function parseCsv(text: string): string[][] {
-	const rows: string[][] = [];
-	let row: string[] = [];
-	let cell = '';
-	let quoted = false;
-	for (let i = 0; i < text.length; i++) {
-		const ch = text[i];
-		if (quoted) {
-			if (ch === '"' && text[i + 1] === '"') {
-				cell += '"';
-				i++;
-			} else if (ch === '"') quoted = false;
-			else cell += ch;
-		} else if (ch === '"') quoted = true;
-		else if (ch === ',') {
-			row.push(cell);
-			cell = '';
-		} else if (ch === '\r' && text[i + 1] === '\n') {
-			row.push(cell);
-			rows.push(row);
-			row = [];
-			cell = '';
-			i++;
-		} else cell += ch;
-	}
-	if (cell || row.length) rows.push([...row, cell]);
-	return rows;
-}
