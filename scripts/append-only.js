@@ -5,5 +5,6 @@ export const APPEND_ONLY_TABLES = [
 	'gate_checks',
 	'signatures',
 	'acknowledgements',
-	'certificate_basis'
+	'certificate_basis',
+	'retention_dispositions'
 ];

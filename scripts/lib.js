@@ -239,6 +239,19 @@ export function grantAppUser(cfg) {
 			: 'SELECT, INSERT, UPDATE, DELETE';
 		stmts.push(`GRANT ${privs} ON \`${cfg.dbName}\`.\`${t}\` TO 'padbridge_app'@'127.0.0.1';`);
 	}
+	// Stored procedures (retention) run with their definer's rights; the app may only call them.
+	const routines = mariadbCli(
+		cfg,
+		`SELECT routine_name FROM information_schema.routines WHERE routine_schema = '${cfg.dbName}' AND routine_type = 'PROCEDURE';`
+	)
+		.split('\n')
+		.map((r) => r.trim())
+		.filter(Boolean);
+	for (const r of routines) {
+		stmts.push(
+			`GRANT EXECUTE ON PROCEDURE \`${cfg.dbName}\`.\`${r}\` TO 'padbridge_app'@'127.0.0.1';`
+		);
+	}
 	mariadbCli(cfg, stmts.join('\n'));
 }
 

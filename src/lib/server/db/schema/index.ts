@@ -5,3 +5,4 @@ export * from './instructions';
 export * from './training';
 export * from './certificates';
 export * from './gate';
+export * from './records';

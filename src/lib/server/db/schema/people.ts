@@ -78,6 +78,10 @@ export const people = mysqlTable(
 		lineId: id('line_id').references(() => lines.id),
 		shiftId: id('shift_id').references(() => shifts.id),
 		active: boolean().notNull().default(true),
+		/** Last day of employment (plant date), set on deactivation or contract end, cleared on rehire. */
+		employmentEndedOn: date({ mode: 'string' }),
+		/** Set when retention dropped the name and identifiers; the row and its records stay. */
+		anonymisedAt: datetime({ mode: 'date', fsp: 3 }),
 		passwordHash: varchar({ length: 255 }),
 		pinHash: varchar({ length: 255 }),
 		/** Bumped on deactivation, role change and credential reset; a session with an older value is dead. */
