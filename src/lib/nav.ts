@@ -25,6 +25,7 @@ export const NAV: NavItem[] = [
 	{ href: '/readiness', label: 'Readiness board', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/supervised-runs', label: 'Supervised runs', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/audit', label: 'Audit trail', roles: ['quality', 'admin'] },
+	{ href: '/records', label: 'Records', roles: ['hr', 'quality', 'admin'] },
 	{ href: '/admin/people', label: 'People', roles: ['admin'] },
 	{ href: '/admin/plant', label: 'Plant', roles: ['admin'] },
 	{ href: '/admin/api-keys', label: 'API keys', roles: ['admin'] }
