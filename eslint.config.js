@@ -36,5 +36,5 @@ export default ts.config(
 			}
 		}
 	},
-	{ files: ['scripts/**', 'bench/**'], rules: { 'no-console': 'off' } }
+	{ files: ['scripts/**', 'bench/**', 'tests/load/**'], rules: { 'no-console': 'off' } }
 );

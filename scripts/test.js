@@ -1,6 +1,6 @@
 // `npm test`: the same set-up as `npm start` on separate ports and a fresh test database, then
 // every check: svelte-check, Prettier + ESLint, Vitest (unit and integration against the real
-// MariaDB and the built server), and Playwright in Debian's Chromium.
+// MariaDB and the built server), Playwright in Debian's Chromium, and a bounded mixed load.
 import { spawn, spawnSync } from 'node:child_process';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -100,6 +100,8 @@ try {
 			'test',
 			...(process.env.E2E_FILTER ?? '').split(' ').filter(Boolean)
 		]);
+		// Mixed load on the same built app; it samples the app's memory through /proc/PID.
+		step('load', bin('tsx'), ['tests/load/mixed-load.ts'], { TEST_APP_PID: String(app.pid) });
 	}
 } finally {
 	cleanup();

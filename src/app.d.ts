@@ -20,6 +20,8 @@ declare global {
 				siteId: number | null;
 				timeZone: string;
 			} | null;
+			/** Set when re-reading the signed-in person failed; the guards throw it (see hooks.server.ts). */
+			userLoadError: unknown;
 		}
 		// interface PageData {}
 		// interface PageState {}

@@ -12,11 +12,24 @@ export const init: ServerInit = async () => {
 	if (process.env.PADBRIDGE_JOBS !== 'off') startScheduler();
 };
 
-/** Re-reads the signed-in person from the database on every request (revocation is immediate). */
+/**
+ * Re-reads the signed-in person from the database on every request (revocation is immediate).
+ * When that read fails (the database is down), the person counts as nobody and the failure is
+ * thrown again by the route's guard: an error thrown here would get SvelteKit's bare fallback page,
+ * while one thrown in a load or endpoint gets the error page with its reference id.
+ */
 const user: Handle = async ({ event, resolve }) => {
 	const session = await event.locals.auth();
 	event.locals.sessionId = session?.sid ?? null;
-	event.locals.user = session?.sid ? await loadSessionUser(session.sid) : null;
+	event.locals.user = null;
+	event.locals.userLoadError = null;
+	if (session?.sid) {
+		try {
+			event.locals.user = await loadSessionUser(session.sid);
+		} catch (err) {
+			event.locals.userLoadError = err;
+		}
+	}
 	return resolve(event);
 };
 
@@ -59,7 +72,9 @@ const headers: Handle = async ({ event, resolve }) => {
 	if (!h.has('Content-Security-Policy')) {
 		h.set('Content-Security-Policy', "default-src 'none'; frame-ancestors 'none'");
 	}
-	if (event.locals.user) h.set('Cache-Control', 'no-store');
+	// A session cookie alone asks for no-store too: while the person cannot be read, the error
+	// page still belongs to them.
+	if (event.locals.user || event.locals.sessionId) h.set('Cache-Control', 'no-store');
 	// Public certificate checks (found, unknown or rate-limited) stay out of search engines.
 	if (event.url.pathname.startsWith('/verify/')) {
 		h.set('X-Robots-Tag', 'noindex, nofollow');

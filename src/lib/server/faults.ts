@@ -1,7 +1,10 @@
-// Fault points for the resilience tests. A multi-row write calls `faultPoint(name)` right after its
-// first statement; when the process runs with PADBRIDGE_FAULT_POINTS=1 and a test has armed that
-// point, the write pauses there until the test releases it (after killing the database, say).
-// Without the variable, or with nothing armed, a fault point costs one property read.
+// Fault points for the resilience tests. A multi-row write calls `faultPoint(name)` inside its
+// transaction right after its first statement that writes (each of these transactions opens with a
+// locking read, and a pause after a bare read would leave nothing half-done to roll back), so the
+// database holds part of the change, uncommitted, while the rest is still to come. When the process
+// runs with PADBRIDGE_FAULT_POINTS=1 and a test has armed that point, the write pauses there until
+// the test releases it (after killing the database, say). Without the variable, or with nothing
+// armed, a fault point costs one property read.
 
 export const FAULT_POINTS = [
 	'publish-revision',
@@ -45,4 +48,9 @@ export function armFaultPoint(name: FaultPointName): {
 	const releaseP = new Promise<void>((r) => (release = r));
 	armed.set(name, { reached, release: releaseP });
 	return { reached: reachedP, release };
+}
+
+/** Forgets every armed point (a test's clean-up, so a point armed by a failed test cannot linger). */
+export function disarmFaultPoints(): void {
+	armed.clear();
 }

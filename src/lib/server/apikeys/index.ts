@@ -217,6 +217,7 @@ export async function identifyApiCaller(
 		const key = await verifyApiKey(header, scope);
 		return key ? { kind: 'key', key } : null;
 	}
+	if (event.locals.userLoadError) throw event.locals.userLoadError;
 	return event.locals.user ? { kind: 'session', user: event.locals.user } : null;
 }
 

@@ -4,8 +4,14 @@ import type { SessionUser } from './sessions';
 
 type WithUser = { locals: App.Locals; url: URL };
 
+/** A failed read of the signed-in person is an error of this request, never "signed out". */
+function throwUserLoadError(event: WithUser): void {
+	if (event.locals.userLoadError) throw event.locals.userLoadError;
+}
+
 /** The signed-in person, or a redirect to sign-in that comes back to this page. */
 export function requireUser(event: WithUser): SessionUser {
+	throwUserLoadError(event);
 	const user = event.locals.user;
 	if (!user) {
 		const back = event.url.pathname + event.url.search;
@@ -27,6 +33,7 @@ export function requireRole(event: WithUser, ...roles: Role[]): SessionUser {
 
 /** For JSON endpoints: 401 instead of a redirect when nobody is signed in. */
 export function requireApiRole(event: WithUser, ...roles: Role[]): SessionUser {
+	throwUserLoadError(event);
 	const user = event.locals.user;
 	// API errors carry `error` as well as SvelteKit's `message`, matching the { error, fields } shape.
 	if (!user) error(401, { message: 'Sign in first.', error: 'Sign in first.' });

@@ -20,6 +20,7 @@ import { config } from '../config';
 import { localDate, zonedToUtc } from '../../time';
 import { evaluatePerson, type ProcessEvaluation } from './evaluate';
 import { renderCertificatePdf } from './pdf';
+import { faultPoint } from '../faults';
 
 export interface IssueResult {
 	certificateId: number | null;
@@ -154,6 +155,7 @@ async function writeCertificate(tx: Tx, ev: ProcessEvaluation, now: Date, actor:
 			stateChangedAt: now
 		})
 		.$returningId();
+	await faultPoint('issue-certificate');
 	const number = certificateNumber(ev.processCode, now, id, zone);
 	await tx.update(certificates).set({ number }).where(eq(certificates.id, id));
 

@@ -13,6 +13,7 @@ import type { Role } from '../../roles';
 import { formatLocal, localDate, zonedToUtc } from '../../time';
 import { describeGateReason } from '../../gate/describe';
 import { evaluateStationAccess } from './index';
+import { faultPoint } from '../faults';
 
 /** Roles that may grant anywhere in the plant; a lead without one of them only on their line. */
 const PLANT_WIDE: Role[] = ['quality', 'admin'];
@@ -185,6 +186,7 @@ export async function grantSupervisedRun(
 				createdAt: now
 			})
 			.$returningId();
+		await faultPoint('grant-supervised-run');
 		await recordAudit(tx, actor, {
 			action: 'supervised_run.granted',
 			entityType: 'supervised_run',

@@ -27,6 +27,7 @@ import { computeContentHash } from './hash';
 import { listRevisionFiles } from './queries';
 import { insertSignature, reauthenticateSigner } from './signatures';
 import { queueReviewRequestedMail } from '../mail/events';
+import { faultPoint } from '../faults';
 
 type SignedActor = Actor & { id: number };
 
@@ -479,6 +480,7 @@ export async function signRevision(
 					version: sql`${revisions.version} + 1`
 				})
 				.where(and(eq(revisions.id, revisionId), eq(revisions.state, 'in_review')));
+			await faultPoint('publish-revision');
 			if (affected(res) !== 1)
 				throw new InstructionError(409, 'This revision was decided by someone else a moment ago.');
 			await bumpSearchEpoch(tx);

@@ -16,6 +16,7 @@ import { recordAudit, type Actor } from '../../audit';
 import { Refusal } from '../../errors';
 import { ruleInForce } from '../rules';
 import { evaluateAndIssue } from '../../certificates/issue';
+import { faultPoint } from '../../faults';
 import { formatLocal } from '../../../time';
 import {
 	computeKey,
@@ -405,6 +406,7 @@ async function gradeAttempt(
 			.update(attemptItems)
 			.set({ correct: g.ok, pointsAwarded: g.awarded })
 			.where(eq(attemptItems.id, g.id));
+	await faultPoint('submit-attempt');
 	const scorePct = scorePercent(graded);
 	const passed = meetsPassMark(scorePct, a.passMarkPct);
 	const state = late ? ('timed_out' as const) : ('submitted' as const);
