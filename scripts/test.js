@@ -3,6 +3,7 @@
 // MariaDB and the built server), Playwright in Debian's Chromium, and a bounded mixed load.
 import { spawn, spawnSync } from 'node:child_process';
 import { rmSync } from 'node:fs';
+import { setTimeout as sleep } from 'node:timers/promises';
 import { join } from 'node:path';
 import {
 	appEnv,
@@ -69,6 +70,14 @@ async function startApp() {
 	log(`test app up at ${env.TEST_APP_URL} (pid ${app.pid})`);
 }
 
+/** Stops the app and waits for it, so its in-flight requests end while the database still runs. */
+async function stopApp() {
+	if (!app || app.exitCode !== null) return;
+	const exited = new Promise((resolve) => app.once('exit', resolve));
+	app.kill('SIGTERM');
+	await Promise.race([exited, sleep(10_000)]);
+}
+
 function cleanup() {
 	if (app && app.exitCode === null) app.kill('SIGTERM');
 	try {
@@ -104,6 +113,7 @@ try {
 		step('load', bin('tsx'), ['tests/load/mixed-load.ts'], { TEST_APP_PID: String(app.pid) });
 	}
 } finally {
+	await stopApp();
 	cleanup();
 }
 
