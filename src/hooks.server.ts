@@ -5,6 +5,7 @@ import { handle as authHandle } from '$lib/server/auth/authjs';
 import { loadSessionUser } from '$lib/server/auth/sessions';
 import { ensureBootstrapAdmin } from '$lib/server/people';
 import { startScheduler } from '$lib/server/jobs/scheduler';
+import { config } from '$lib/server/config';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
@@ -60,6 +61,8 @@ const headers: Handle = async ({ event, resolve }) => {
 		h.set('Content-Security-Policy', "default-src 'none'; frame-ancestors 'none'");
 	}
 	if (event.locals.user) h.set('Cache-Control', 'no-store');
+	// Behind a balancer: which instance answered (for operators and the cluster tests).
+	if (config.instanceName) h.set('X-Padbridge-Instance', config.instanceName);
 	// Public certificate checks (found, unknown or rate-limited) stay out of search engines.
 	if (event.url.pathname.startsWith('/verify/')) {
 		h.set('X-Robots-Tag', 'noindex, nofollow');
