@@ -4,13 +4,20 @@ import { randomUUID } from 'node:crypto';
 import { handle as authHandle } from '$lib/server/auth/authjs';
 import { loadSessionUser } from '$lib/server/auth/sessions';
 import { ensureBootstrapAdmin } from '$lib/server/people';
-import { startScheduler } from '$lib/server/jobs/scheduler';
+import { startScheduler, stopScheduler } from '$lib/server/jobs/scheduler';
+import { pool } from '$lib/server/db';
 import { config } from '$lib/server/config';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
 	// PADBRIDGE_JOBS=off leaves scheduled work to other instances (or to tests that drive it).
 	if (process.env.PADBRIDGE_JOBS !== 'off') startScheduler();
+	// adapter-node emits this once the HTTP server has closed after SIGTERM or SIGINT (requests in
+	// flight have finished); closing the pool lets the process exit instead of idling on it.
+	process.once('sveltekit:shutdown', () => {
+		stopScheduler();
+		pool.end().catch((err) => console.error('closing the database pool failed', err));
+	});
 };
 
 /** Re-reads the signed-in person from the database on every request (revocation is immediate). */

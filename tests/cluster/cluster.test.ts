@@ -192,7 +192,7 @@ describe('instructions', () => {
 		);
 		expect(sorted(foundAfter.keys())).toEqual(INSTANCES);
 		// Each instance asks the database for the search epoch every 2 s.
-		expect(foundAfter.get(other)!).toBeLessThan(5_000);
+		expect(foundAfter.get(other)!).toBeLessThan(8_000);
 	});
 
 	it('serves a file uploaded through one instance from both', async () => {
@@ -233,41 +233,46 @@ describe('instructions', () => {
 });
 
 interface Lease {
+	name: string;
 	holder: string | null;
-	lease_until: Date | null;
 	last_run_at: Date | null;
 }
 
-async function lease(name: string): Promise<Lease> {
-	const [row] = await queryRows<Lease>(
+const JOBS = ['mail-send', 'mail-reminders'];
+
+async function leases(): Promise<Map<string, Lease>> {
+	const rows = await queryRows<Lease>(
 		appDb(),
-		'SELECT holder, lease_until, last_run_at FROM job_leases WHERE name = ?',
-		[name]
+		'SELECT name, holder, last_run_at FROM job_leases WHERE name IN (?)',
+		[JOBS]
 	);
-	return row;
+	return new Map(rows.map((r) => [r.name, r]));
 }
 
 /**
- * Frees a job's lease, as if its interval had passed, and waits for the run that follows: both
- * instances tick every 15 s, and the first to try takes it. Returns the instance that ran it.
+ * Frees the jobs' leases, as if their intervals had passed, and waits for the runs that follow:
+ * both instances tick every 15 s and the first to try takes each lease. Returns who ran what.
  */
-async function freeAndAwaitRun(name: string): Promise<string> {
-	const before = await lease(name);
-	await appDb().query('UPDATE job_leases SET lease_until = NULL WHERE name = ?', [name]);
+async function freeAndAwaitRuns(): Promise<Map<string, string>> {
+	const before = await leases();
+	await appDb().query('UPDATE job_leases SET lease_until = NULL WHERE name IN (?)', [JOBS]);
 	const until = Date.now() + 25_000;
 	while (Date.now() < until) {
-		const now = await lease(name);
-		if (now.last_run_at && now.last_run_at.getTime() !== before.last_run_at?.getTime()) {
-			return now.holder!.split(':')[0];
-		}
+		const now = await leases();
+		const ran = JOBS.filter(
+			(j) => now.get(j)?.last_run_at?.getTime() !== before.get(j)?.last_run_at?.getTime()
+		);
+		if (ran.length === JOBS.length)
+			return new Map(JOBS.map((j) => [j, now.get(j)!.holder!.split(':')[0]]));
 		await sleep(100);
 	}
-	throw new Error(`${name} did not run within 25 s of its lease being freed`);
+	throw new Error(`${JOBS.join(' and ')} did not both run within 25 s of their leases being freed`);
 }
 
 describe('scheduled jobs', () => {
 	let holder: Person;
-	let certificateId: number;
+	let key: string;
+	const ranBy = new Map<string, string[]>(JOBS.map((j) => [j, []]));
 
 	beforeAll(async () => {
 		holder = await createPerson({ roles: ['operator'] });
@@ -276,37 +281,44 @@ describe('scheduled jobs', () => {
 			processCode: 'FOG-MB',
 			expiresAt: new Date(Date.now() + 20 * DAY)
 		});
-		certificateId = cert.id;
+		key = `expiring_30:certificate:${cert.id}`;
 	});
 
+	const sentAt = async () =>
+		(
+			await queryRows<{ sent_at: Date | null }>(
+				appDb(),
+				'SELECT sent_at FROM mail_outbox WHERE dedupe_key = ?',
+				[key]
+			)
+		)[0]?.sent_at ?? null;
+
 	it('gives each run to one instance, and the next free lease to whichever ticks first', async () => {
-		// Right after one instance's run the other instance ticks next, so two runs in a row
-		// normally land on both; a few more tries cover instances whose ticks fall close together.
-		const runs: string[] = [];
-		for (let i = 0; i < 4 && sorted(runs).length < INSTANCES.length; i++) {
-			runs.push(await freeAndAwaitRun('mail-reminders'));
+		// Right after one instance's runs the other instance ticks next, so two rounds normally
+		// land on both; more rounds cover instances whose ticks fall close together. In the first
+		// round the reminder is queued (the sender runs before it in a tick), in the next it is sent.
+		const everywhere = () => JOBS.every((j) => sorted(ranBy.get(j)!).length === INSTANCES.length);
+		for (let i = 0; i < 5 && !(everywhere() && (await sentAt())); i++) {
+			for (const [job, instance] of await freeAndAwaitRuns()) ranBy.get(job)!.push(instance);
 		}
-		console.info(`mail-reminders runs after freeing its lease: ${runs.join(', ')}`);
-		expect(sorted(runs)).toEqual(INSTANCES);
-		// Both runs saw the certificate; its 30-day reminder was queued exactly once.
+		console.info(
+			`runs after freeing the leases: ${JOBS.map((j) => `${j} ${ranBy.get(j)!.join(', ')}`).join('; ')}`
+		);
+		for (const j of JOBS) expect(sorted(ranBy.get(j)!)).toEqual(INSTANCES);
+		// Every reminder run saw the certificate; its 30-day reminder was queued exactly once.
 		const queued = await queryRows<{ n: number }>(
 			appDb(),
 			'SELECT COUNT(*) AS n FROM mail_outbox WHERE dedupe_key = ?',
-			[`expiring_30:certificate:${certificateId}`]
+			[key]
 		);
 		expect(Number(queued[0].n)).toBe(1);
 	});
 
-	it('sends the reminder once although both instances run the sender', async () => {
-		const senders: string[] = [];
-		for (let i = 0; i < 4 && sorted(senders).length < INSTANCES.length; i++) {
-			senders.push(await freeAndAwaitRun('mail-send'));
-		}
-		expect(sorted(senders)).toEqual(INSTANCES);
+	it('sends the reminder once although both instances ran the sender', async () => {
 		const rows = await queryRows<{ sent_at: Date | null; attempts: number }>(
 			appDb(),
 			'SELECT sent_at, attempts FROM mail_outbox WHERE dedupe_key = ?',
-			[`expiring_30:certificate:${certificateId}`]
+			[key]
 		);
 		expect(rows).toHaveLength(1);
 		expect(rows[0].sent_at).not.toBeNull();
