@@ -5,6 +5,7 @@
 // elsewhere, e.g. for a drill beside the live data). Stop the app first (`npm run stop`).
 import { existsSync, readFileSync } from 'node:fs';
 import { ensureNodeModules, fail, log, modeConfig, processAlive } from './lib.js';
+import { clusterRunning } from './cluster-services.js';
 
 const args = process.argv.slice(2);
 const cfg = modeConfig(args.includes('--test') ? 'test' : 'dev');
@@ -30,6 +31,8 @@ if (!database && existsSync(cfg.runFile)) {
 	if (run.app && processAlive(run.app, 'node'))
 		fail(`Padbridge is running on this database (pid ${run.app}); npm run stop first`);
 }
+if (!database && clusterRunning(cfg))
+	fail('the cluster is running on this database; npm run stop first');
 
 ensureNodeModules();
 const { restoreBackup, withLocalServices } = await import('./backup-archive.js');
