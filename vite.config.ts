@@ -31,7 +31,23 @@ export default defineConfig({
 					testTimeout: 30_000,
 					hookTimeout: 60_000
 				}
-			}
+			},
+			// Through the balancer of `npm test`'s cluster step, which sets CLUSTER_INSTANCES.
+			...(process.env.CLUSTER_INSTANCES
+				? [
+						{
+							extends: true as const,
+							test: {
+								name: 'cluster',
+								include: ['tests/cluster/**/*.test.ts'],
+								environment: 'node',
+								fileParallelism: false,
+								testTimeout: 90_000,
+								hookTimeout: 60_000
+							}
+						}
+					]
+				: [])
 		]
 	}
 });

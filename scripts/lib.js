@@ -29,7 +29,14 @@ export function modeConfig(mode) {
 		s3Port: 4569 + offset,
 		s3Dir: join(dataDir, 's3'),
 		mailDir: join(dataDir, 'mail'),
-		runFile: join(dataDir, 'run.json')
+		runFile: join(dataDir, 'run.json'),
+		// `npm run cluster`: a balancer in front of two app instances (ports clear of Chromium's
+		// blocked list for every offset the checkouts use).
+		balancerPort: 3050 + offset,
+		instancePorts: [3051 + offset, 3052 + offset],
+		clusterDir: join(dataDir, 'cluster'),
+		clusterRunFile: join(dataDir, 'cluster.json'),
+		backupDir: join(root, '.data', 'backups')
 	};
 }
 
@@ -116,7 +123,8 @@ export function processAlive(pid, name) {
 	}
 }
 
-function mariadbCli(cfg, sql, { database } = {}) {
+/** Runs SQL as root over the socket (admin work: grants, dumps, restores). */
+export function mariadbCli(cfg, sql, { database } = {}) {
 	const args = [
 		'--no-defaults',
 		`--socket=${cfg.socket}`,
@@ -128,7 +136,7 @@ function mariadbCli(cfg, sql, { database } = {}) {
 	return execFileSync('mariadb', args, { input: sql, encoding: 'utf8' });
 }
 
-function ping(cfg) {
+export function ping(cfg) {
 	const r = spawnSync(
 		'mariadb-admin',
 		['--no-defaults', `--socket=${cfg.socket}`, '-uroot', 'ping'],
@@ -223,36 +231,63 @@ GRANT ALL PRIVILEGES ON \`${cfg.dbName}\\_scratch%\`.* TO 'padbridge_owner'@'127
 
 export { APPEND_ONLY_TABLES };
 
-/** Table-level grants for the app user, re-applied after each migration. */
-export function grantAppUser(cfg) {
-	const tables = mariadbCli(
-		cfg,
-		`SELECT table_name FROM information_schema.tables WHERE table_schema = '${cfg.dbName}' AND table_name NOT LIKE '\\_\\_drizzle%';`
-	)
+const APP_USER = `'padbridge_app'@'127.0.0.1'`;
+
+/** Lines of a batch query's single column. */
+function column(cfg, sql) {
+	return mariadbCli(cfg, sql)
 		.split('\n')
 		.map((t) => t.trim())
 		.filter(Boolean);
-	const stmts = [`REVOKE ALL PRIVILEGES, GRANT OPTION FROM 'padbridge_app'@'127.0.0.1';`];
+}
+
+/**
+ * Takes away the app user's rights on this database only: its rights on other databases (a
+ * restore drill's scratch copy, say) stay as they are. Rows of dropped tables go too.
+ */
+export function revokeAppUser(cfg) {
+	const db = cfg.dbName.replace(/'/g, "''");
+	const where = `User = 'padbridge_app' AND Host = '127.0.0.1' AND Db = '${db}'`;
+	// Global rights are never the app's; rights on other databases are left alone.
+	const stmts = [`REVOKE ALL PRIVILEGES ON *.* FROM ${APP_USER};`];
+	for (const t of column(cfg, `SELECT Table_name FROM mysql.tables_priv WHERE ${where};`)) {
+		stmts.push(`REVOKE ALL PRIVILEGES ON \`${cfg.dbName}\`.\`${t}\` FROM ${APP_USER};`);
+	}
+	for (const r of column(
+		cfg,
+		`SELECT Routine_name FROM mysql.procs_priv WHERE ${where} AND Routine_type = 'PROCEDURE';`
+	)) {
+		stmts.push(`REVOKE ALL PRIVILEGES ON PROCEDURE \`${cfg.dbName}\`.\`${r}\` FROM ${APP_USER};`);
+	}
+	if (column(cfg, `SELECT Db FROM mysql.db WHERE ${where};`).length) {
+		stmts.push(`REVOKE ALL PRIVILEGES ON \`${cfg.dbName}\`.* FROM ${APP_USER};`);
+	}
+	mariadbCli(cfg, stmts.join('\n'));
+}
+
+/** Table-level grants for the app user, re-applied after each migration and after a restore. */
+export function grantAppUser(cfg) {
+	revokeAppUser(cfg);
+	const tables = column(
+		cfg,
+		`SELECT table_name FROM information_schema.tables WHERE table_schema = '${cfg.dbName}' AND table_name NOT LIKE '\\_\\_drizzle%';`
+	);
+	const stmts = [];
 	for (const t of tables) {
 		const privs = APPEND_ONLY_TABLES.includes(t)
 			? 'SELECT, INSERT'
 			: 'SELECT, INSERT, UPDATE, DELETE';
-		stmts.push(`GRANT ${privs} ON \`${cfg.dbName}\`.\`${t}\` TO 'padbridge_app'@'127.0.0.1';`);
+		stmts.push(`GRANT ${privs} ON \`${cfg.dbName}\`.\`${t}\` TO ${APP_USER};`);
 	}
 	// Stored procedures (retention) run with their definer's rights; the app may only call them.
-	const routines = mariadbCli(
+	const routines = column(
 		cfg,
 		`SELECT routine_name FROM information_schema.routines WHERE routine_schema = '${cfg.dbName}' AND routine_type = 'PROCEDURE';`
-	)
-		.split('\n')
-		.map((r) => r.trim())
-		.filter(Boolean);
+	);
 	for (const r of routines) {
-		stmts.push(
-			`GRANT EXECUTE ON PROCEDURE \`${cfg.dbName}\`.\`${r}\` TO 'padbridge_app'@'127.0.0.1';`
-		);
+		stmts.push(`GRANT EXECUTE ON PROCEDURE \`${cfg.dbName}\`.\`${r}\` TO ${APP_USER};`);
 	}
-	mariadbCli(cfg, stmts.join('\n'));
+	if (stmts.length) mariadbCli(cfg, stmts.join('\n'));
 }
 
 export function countRows(cfg, table) {
@@ -286,6 +321,27 @@ export async function waitForHttp(url, timeoutMs = 30_000) {
 		await sleep(250);
 	}
 	return false;
+}
+
+/** Builds the app (vite build) when the sources are newer than the last build. */
+export function ensureBuild() {
+	const stamp = join(root, 'build', '.built-at');
+	const sourcesNewest = newestMtime([
+		'src',
+		'content',
+		'static',
+		'package-lock.json',
+		'svelte.config.js',
+		'vite.config.ts',
+		'tailwind.config.ts'
+	]);
+	if (existsSync(stamp) && statSync(stamp).mtimeMs >= sourcesNewest) {
+		log('build is up to date');
+		return;
+	}
+	log('building the app (vite build)');
+	run(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'warn']);
+	writeFileSync(stamp, new Date().toISOString());
 }
 
 /** The environment the built server and the tests run with. */

@@ -37,7 +37,7 @@ async function bucketReady(cfg) {
 	}
 }
 
-async function startFakes(cfg, { detached = true } = {}) {
+export async function startFakes(cfg, { detached = true } = {}) {
 	if (existsSync(cfg.runFile)) {
 		const prev = JSON.parse(readFileSync(cfg.runFile, 'utf8'));
 		if (prev.fakes && processAlive(prev.fakes, 'node') && (await portOpen(cfg.smtpPort))) {

@@ -1,10 +1,11 @@
 // `npm start`: sets up whatever is missing, then builds and serves Padbridge with the demo plant.
 // `npm start -- --detach` leaves it running in the background; `npm run stop` ends it.
-import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, readFileSync, statSync, writeFileSync, rmSync } from 'node:fs';
+import { spawn } from 'node:child_process';
+import { existsSync, readFileSync, writeFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import {
 	appEnv,
+	ensureBuild,
 	ensureDebianPackages,
 	ensureNodeModules,
 	log,
@@ -35,27 +36,7 @@ ensureNodeModules();
 const { prepareServices } = await import('./services.js');
 const services = await prepareServices(cfg, { freshDatabase: false, seed: true });
 
-const stamp = join(root, 'build', '.built-at');
-const sourcesNewest = (await import('./lib.js')).newestMtime([
-	'src',
-	'content',
-	'static',
-	'package-lock.json',
-	'svelte.config.js',
-	'vite.config.ts',
-	'tailwind.config.ts'
-]);
-if (!existsSync(stamp) || statSync(stamp).mtimeMs < sourcesNewest) {
-	log('building the app (vite build)');
-	const r = spawnSync(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'warn'], {
-		cwd: root,
-		stdio: 'inherit'
-	});
-	if (r.status !== 0) fail('build failed');
-	writeFileSync(stamp, new Date().toISOString());
-} else {
-	log('build is up to date');
-}
+ensureBuild();
 
 const env = { ...process.env, ...appEnv(cfg), ...services.overrides };
 const app = spawn(process.execPath, [join(root, 'build')], {

@@ -15,6 +15,7 @@ import {
 	stopMariadb,
 	waitForHttp
 } from './lib.js';
+import { startCluster, stopCluster } from './cluster-services.js';
 
 const started = Date.now();
 const only = process.argv.slice(2); // e.g. `npm test -- vitest` runs only the named steps
@@ -22,6 +23,7 @@ ensureDebianPackages([
 	'mariadb-server',
 	'mariadb-client',
 	'chromium',
+	'nginx',
 	'poppler-utils',
 	'tesseract-ocr',
 	'tesseract-ocr-vie',
@@ -31,6 +33,8 @@ ensureNodeModules();
 
 const cfg = modeConfig('test');
 rmSync(cfg.mailDir, { recursive: true, force: true });
+// The test database starts fresh, so its object store does too (no files of earlier runs).
+rmSync(cfg.s3Dir, { recursive: true, force: true });
 const { prepareServices } = await import('./services.js');
 const services = await prepareServices(cfg, { freshDatabase: true, seed: true });
 const env = {
@@ -78,7 +82,35 @@ async function stopApp() {
 	await Promise.race([exited, sleep(10_000)]);
 }
 
-function cleanup() {
+/**
+ * Two more instances of the built app with their scheduled jobs on, behind nginx, on the test
+ * database (after e2e: their jobs run on the real clock), and the cluster tests through it.
+ */
+async function clusterStep() {
+	if (only.length && !only.includes('cluster')) return;
+	const t = Date.now();
+	let run;
+	try {
+		run = await startCluster(cfg, { baseEnv: env });
+	} catch (err) {
+		console.error(err.message);
+		results.push({ name: 'cluster', ok: false, seconds: ((Date.now() - t) / 1000).toFixed(1) });
+		return;
+	}
+	log(`cluster up in ${((Date.now() - t) / 1000).toFixed(1)} s`);
+	const instances = run.instances.map((p) => p.name).join(',');
+	step('cluster', bin('vitest'), ['run', '--project', 'cluster'], {
+		TEST_APP_URL: run.balancer,
+		CLUSTER_INSTANCES: instances
+	});
+	const stopping = Date.now();
+	await stopCluster(cfg);
+	log(`cluster stopped in ${((Date.now() - stopping) / 1000).toFixed(1)} s`);
+	results.at(-1).seconds = ((Date.now() - t) / 1000).toFixed(1);
+}
+
+async function cleanup() {
+	await stopCluster(cfg);
 	if (app && app.exitCode === null) app.kill('SIGTERM');
 	try {
 		if (services.fakesPid) process.kill(services.fakesPid, 'SIGTERM');
@@ -87,8 +119,8 @@ function cleanup() {
 	}
 	stopMariadb(cfg);
 }
-process.on('SIGINT', () => {
-	cleanup();
+process.on('SIGINT', async () => {
+	await cleanup();
 	process.exit(130);
 });
 
@@ -111,10 +143,11 @@ try {
 		]);
 		// Mixed load on the same built app; it samples the app's memory through /proc/PID.
 		step('load', bin('tsx'), ['tests/load/mixed-load.ts'], { TEST_APP_PID: String(app.pid) });
+		await clusterStep();
 	}
 } finally {
 	await stopApp();
-	cleanup();
+	await cleanup();
 }
 
 console.log('\n  step        result   seconds');

@@ -4,12 +4,20 @@ import { randomUUID } from 'node:crypto';
 import { handle as authHandle } from '$lib/server/auth/authjs';
 import { loadSessionUser } from '$lib/server/auth/sessions';
 import { ensureBootstrapAdmin } from '$lib/server/people';
-import { startScheduler } from '$lib/server/jobs/scheduler';
+import { startScheduler, stopScheduler } from '$lib/server/jobs/scheduler';
+import { pool } from '$lib/server/db';
+import { config } from '$lib/server/config';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
 	// PADBRIDGE_JOBS=off leaves scheduled work to other instances (or to tests that drive it).
 	if (process.env.PADBRIDGE_JOBS !== 'off') startScheduler();
+	// adapter-node emits this once the HTTP server has closed after SIGTERM or SIGINT (requests in
+	// flight have finished); closing the pool lets the process exit instead of idling on it.
+	process.once('sveltekit:shutdown', () => {
+		stopScheduler();
+		pool.end().catch((err) => console.error('closing the database pool failed', err));
+	});
 };
 
 /**
@@ -75,6 +83,8 @@ const headers: Handle = async ({ event, resolve }) => {
 	// A session cookie alone asks for no-store too: while the person cannot be read, the error
 	// page still belongs to them.
 	if (event.locals.user || event.locals.sessionId) h.set('Cache-Control', 'no-store');
+	// Behind a balancer: which instance answered (for operators and the cluster tests).
+	if (config.instanceName) h.set('X-Padbridge-Instance', config.instanceName);
 	// Public certificate checks (found, unknown or rate-limited) stay out of search engines.
 	if (event.url.pathname.startsWith('/verify/')) {
 		h.set('X-Robots-Tag', 'noindex, nofollow');

@@ -39,5 +39,12 @@ export const config = {
 		user: e.SMTP_USER || undefined,
 		password: e.SMTP_PASSWORD ?? e.SMTP_PASS ?? undefined
 	},
-	mailFrom: e.MAIL_FROM ?? 'Padbridge <padbridge@localhost>'
+	mailFrom: e.MAIL_FROM ?? 'Padbridge <padbridge@localhost>',
+	/**
+	 * This instance's name when several run behind a balancer: sent as X-Padbridge-Instance and
+	 * written into job leases and mail claims. Letters, digits, dot, dash and underscore only.
+	 */
+	instanceName: /^[A-Za-z0-9._-]{1,40}$/.test(e.PADBRIDGE_INSTANCE ?? '')
+		? e.PADBRIDGE_INSTANCE!
+		: null
 };

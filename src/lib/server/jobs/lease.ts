@@ -5,9 +5,10 @@ import { randomUUID } from 'node:crypto';
 import { and, eq, isNull, lte, or } from 'drizzle-orm';
 import { db } from '../db';
 import { jobLeases } from '../db/schema';
+import { config } from '../config';
 
-/** This process's name in lease rows. */
-export const INSTANCE_ID = `${hostname()}:${process.pid}:${randomUUID().slice(0, 8)}`;
+/** This process's name in lease rows (PADBRIDGE_INSTANCE first, when set). */
+export const INSTANCE_ID = `${config.instanceName ?? hostname()}:${process.pid}:${randomUUID().slice(0, 8)}`;
 
 const affected = (res: unknown) => (res as [{ affectedRows: number }])[0].affectedRows;
 
