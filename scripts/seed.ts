@@ -22,6 +22,7 @@ import { seedChecks } from './seed-checks';
 import { seedChecklists } from './seed-signoffs';
 import { seedRulesAndAssignments } from './seed-rules';
 import { seedCertificates } from './seed-certificates';
+import { seedRecords } from './seed-records';
 
 const DEMO_PIN = DEMO_ACCOUNTS.find((a) => a.role === 'operator')!.pin!;
 
@@ -287,6 +288,7 @@ async function main() {
 	console.log(`demo plant loaded in ${Date.now() - started} ms`);
 	await seedInstructions();
 	await seedTraining();
+	await seedRecords();
 }
 
 /** Knowledge checks, checklists, certification rules and assignments, then the certificate history. */

@@ -8,7 +8,8 @@ import { db, pool } from '../../src/lib/server/db';
 import { auditEvents, people } from '../../src/lib/server/db/schema';
 import { listAuditEvents, type Actor } from '../../src/lib/server/audit';
 import { exportAuditCsv } from '../../src/lib/server/audit/export';
-import { createPerson, setPersonActive } from '../../src/lib/server/people';
+import { createPerson } from '../../src/lib/server/people';
+import { deactivatePerson } from '../../src/lib/server/people/leavers';
 import { createLine, setPlantActive } from '../../src/lib/server/plant';
 import { personSchema } from '../../src/lib/schemas/people';
 import { parseCsv } from '../helpers/csv-parse';
@@ -63,7 +64,7 @@ beforeAll(async () => {
 afterAll(async () => {
 	// Out of the way of other tests: the test line and person stay only as history.
 	await setPlantActive(admin, 'line', lineId, false, 'export test finished');
-	await setPersonActive(admin, personId, false, 'export test finished');
+	await deactivatePerson(admin, personId, 'export test finished');
 	await pool.end();
 });
 

@@ -112,3 +112,14 @@ export const badgeSignInSchema = z.object({
 	pin: z.string().regex(/^\d{4,8}$/, 'Your PIN is 4 to 8 digits'),
 	redirectTo: z.string().max(500).default('/')
 });
+
+/** Rehiring a person who left: why, and optionally the new contract's last day. */
+export const rehireSchema = z.object({
+	reason: z.string().trim().min(3, 'Say why (at least 3 characters)').max(500),
+	contractEndsOn: z
+		.union([z.literal(''), z.iso.date('Use a real date (YYYY-MM-DD)')])
+		.transform((v) => (v === '' ? null : v))
+		.nullable()
+		.default(null)
+});
+export type RehireInput = z.infer<typeof rehireSchema>;

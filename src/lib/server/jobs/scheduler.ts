@@ -4,6 +4,8 @@ import { runCertificateLifecycle } from '../certificates/lifecycle';
 import { queueLeadDigests } from '../mail/digest';
 import { queueExpiryReminders } from '../mail/reminders';
 import { sendPendingMail } from '../mail/send';
+import { endExpiredContracts } from '../people/leavers';
+import { runRetention } from '../records/retention';
 import { recordJobRun, takeLease } from './lease';
 
 export interface Job {
@@ -18,7 +20,18 @@ export const JOBS: Job[] = [
 	{ name: 'mail-send', intervalMs: 30_000, run: (now) => sendPendingMail(now) },
 	{ name: 'mail-reminders', intervalMs: 10 * 60_000, run: (now) => queueExpiryReminders(now) },
 	// Hourly; each lead's digest goes once per plant day from 06:00 plant time (dedupe key).
-	{ name: 'mail-digest', intervalMs: 60 * 60_000, run: (now) => queueLeadDigests(now) }
+	{ name: 'mail-digest', intervalMs: 60 * 60_000, run: (now) => queueLeadDigests(now) },
+	// Agency contracts end at the end of their last day in the plant's zone; idempotent.
+	{ name: 'contract-ends', intervalMs: 60_000, run: (now) => endExpiredContracts(now) },
+	// Daily and for real: anonymises people past retention and purges old gate log rows.
+	{
+		name: 'retention',
+		intervalMs: 24 * 60 * 60_000,
+		run: async (now) => {
+			const { runId, summary } = await runRetention({ dryRun: false, actor: null, now });
+			return { runId, ...summary.applied };
+		}
+	}
 ];
 
 /** Runs every job whose lease this instance can take now; errors are recorded, not thrown. */

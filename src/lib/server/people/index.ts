@@ -1,9 +1,11 @@
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
-import { db } from '../db';
-import { lines, people, roleAssignments, shifts, authSessions } from '../db/schema';
+import { db, type Tx } from '../db';
+import { lines, people, roleAssignments, shifts } from '../db/schema';
 import { recordAudit, type Actor } from '../audit';
 import { hashSecret, verifySecret } from '../auth/password';
 import { config } from '../config';
+import { Refusal } from '../errors';
+import { findRetiredIdentifier } from './retired';
 import type { PersonInput } from '../../schemas/people';
 import type { Role } from '../../roles';
 
@@ -28,6 +30,7 @@ export async function listPeople() {
 			employmentType: people.employmentType,
 			contractEndsOn: people.contractEndsOn,
 			active: people.active,
+			anonymised: sql<number>`${people.anonymisedAt} is not null`,
 			line: lines.code,
 			shift: shifts.code,
 			roles: sql<
@@ -38,7 +41,11 @@ export async function listPeople() {
 		.leftJoin(lines, eq(lines.id, people.lineId))
 		.leftJoin(shifts, eq(shifts.id, people.shiftId))
 		.orderBy(asc(people.displayName));
-	return rows.map((r) => ({ ...r, roles: (r.roles ?? '').split(',').filter(Boolean) as Role[] }));
+	return rows.map((r) => ({
+		...r,
+		anonymised: Boolean(Number(r.anonymised)),
+		roles: (r.roles ?? '').split(',').filter(Boolean) as Role[]
+	}));
 }
 
 /** One person as the edit form needs it (no secrets). */
@@ -57,6 +64,8 @@ export async function getPerson(id: number) {
 			lineId: people.lineId,
 			shiftId: people.shiftId,
 			active: people.active,
+			employmentEndedOn: people.employmentEndedOn,
+			anonymisedAt: people.anonymisedAt,
 			hasPassword: sql<number>`${people.passwordHash} is not null`,
 			hasPin: sql<number>`${people.pinHash} is not null`
 		})
@@ -116,10 +125,27 @@ function record(input: PersonInput) {
 	};
 }
 
-/** Adds a person with their roles; duplicate identifiers come back as a ConflictError on the field. */
+/** Refuses identifiers that belonged to an anonymised person, on the form's field. */
+async function refuseRetired(tx: Tx, input: PersonInput) {
+	const retired = await findRetiredIdentifier(tx, {
+		employee_no: input.employeeNo,
+		badge_no: input.badgeNo,
+		email: input.email
+	});
+	if (retired) throw new ConflictError(retired.field, retired.message);
+}
+
+const ANONYMISED_NO_EDIT =
+	'This person was anonymised by the retention run; the record keeps its numbers and dates but can no longer be edited.';
+
+/**
+ * Adds a person with their roles; duplicate or retired identifiers come back as a ConflictError on
+ * the field.
+ */
 export async function createPerson(actor: Actor, input: PersonInput, siteId: number | null) {
 	try {
 		return await db.transaction(async (tx) => {
+			await refuseRetired(tx, input);
 			const values = { ...record(input), siteId };
 			const [{ id }] = await tx.insert(people).values(values).$returningId();
 			await tx.insert(roleAssignments).values(input.roles.map((role) => ({ personId: id, role })));
@@ -145,6 +171,8 @@ export async function updatePerson(actor: Actor, id: number, input: PersonInput)
 		await db.transaction(async (tx) => {
 			const [old] = await tx.select().from(people).where(eq(people.id, id)).for('update');
 			if (!old) throw new Error(`person ${id} vanished`);
+			if (old.anonymisedAt) throw new ConflictError('displayName', ANONYMISED_NO_EDIT);
+			await refuseRetired(tx, input);
 			const oldRoles = (
 				await tx
 					.select({ role: roleAssignments.role })
@@ -186,33 +214,6 @@ export async function updatePerson(actor: Actor, id: number, input: PersonInput)
 	}
 }
 
-/** Deactivates or reactivates a person; deactivation ends every open session at once. */
-export async function setPersonActive(actor: Actor, id: number, active: boolean, reason: string) {
-	await db.transaction(async (tx) => {
-		const [old] = await tx.select().from(people).where(eq(people.id, id)).for('update');
-		if (!old) throw new Error(`person ${id} vanished`);
-		if (old.active === active) return;
-		await tx
-			.update(people)
-			.set({ active, sessionVersion: old.sessionVersion + 1 })
-			.where(eq(people.id, id));
-		if (!active) {
-			await tx
-				.update(authSessions)
-				.set({ revokedAt: new Date() })
-				.where(and(eq(authSessions.personId, id), sql`${authSessions.revokedAt} is null`));
-		}
-		await recordAudit(tx, actor, {
-			action: active ? 'person.reactivate' : 'person.deactivate',
-			entityType: 'person',
-			entityId: id,
-			oldValues: { active: old.active },
-			newValues: { active },
-			reason
-		});
-	});
-}
-
 /** Sets a new password or PIN (hashed), ending the person's sessions. The secret is never audited. */
 export async function resetSecret(
 	actor: Actor,
@@ -224,11 +225,12 @@ export async function resetSecret(
 	const hashed = await hashSecret(secret);
 	await db.transaction(async (tx) => {
 		const [old] = await tx
-			.select({ v: people.sessionVersion })
+			.select({ v: people.sessionVersion, anonymisedAt: people.anonymisedAt })
 			.from(people)
 			.where(eq(people.id, id))
 			.for('update');
 		if (!old) throw new Error(`person ${id} vanished`);
+		if (old.anonymisedAt) throw new Refusal(409, ANONYMISED_NO_EDIT);
 		await tx
 			.update(people)
 			.set(
