@@ -22,6 +22,7 @@ ensureDebianPackages([
 	'mariadb-client',
 	'chromium',
 	'poppler-utils',
+	'unzip',
 	'tesseract-ocr',
 	'tesseract-ocr-vie',
 	'tesseract-ocr-chi-sim'

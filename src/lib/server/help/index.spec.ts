@@ -11,7 +11,8 @@ describe('help pages', () => {
 			'safety',
 			'terminals',
 			'certification',
-			'station-gate'
+			'station-gate',
+			'records'
 		]);
 		for (const page of pages) {
 			expect(page.title.length).toBeGreaterThan(5);
