@@ -174,6 +174,9 @@ export async function startMariadb(cfg) {
 		);
 		if (r.status !== 0) fail(`mariadb-install-db failed:\n${r.stdout}\n${r.stderr}`);
 	}
+	// Its own temporary folder: big sorts (exports) spill to disk, and /tmp may be cleaned under it.
+	const tmpDir = join(cfg.dataDir, 'mariadb-tmp');
+	mkdirSync(tmpDir, { recursive: true });
 	const child = spawn(
 		'setsid',
 		[
@@ -185,6 +188,7 @@ export async function startMariadb(cfg) {
 			`--port=${cfg.dbPort}`,
 			'--bind-address=127.0.0.1',
 			`--pid-file=${pidFile}`,
+			`--tmpdir=${tmpDir}`,
 			`--log-error=${join(cfg.dataDir, 'mariadb.err')}`,
 			'--skip-name-resolve',
 			'--character-set-server=utf8mb4',

@@ -25,6 +25,7 @@ ensureDebianPackages([
 	'chromium',
 	'nginx',
 	'poppler-utils',
+	'unzip',
 	'tesseract-ocr',
 	'tesseract-ocr-vie',
 	'tesseract-ocr-chi-sim'

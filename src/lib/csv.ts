@@ -6,6 +6,11 @@ export const CSV_BOM = '\uFEFF';
 // Spreadsheets treat a cell starting with one of these as a formula (OWASP, "CSV Injection").
 const FORMULA_START = /^[=+\-@\t\r]/;
 
+/** Text that could start a formula gets a leading apostrophe (CSV cells and XLSX text cells alike). */
+export function formulaSafe(text: string): string {
+	return FORMULA_START.test(text) ? `'${text}` : text;
+}
+
 /** One cell: text that could start a formula gets a leading apostrophe; quoted when needed. */
 export function csvCell(value: unknown): string {
 	if (value === null || value === undefined) return '';
@@ -16,7 +21,7 @@ export function csvCell(value: unknown): string {
 			: value instanceof Date
 				? value.toISOString()
 				: JSON.stringify(value);
-	if (FORMULA_START.test(text)) text = `'${text}`;
+	text = formulaSafe(text);
 	return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
 

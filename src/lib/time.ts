@@ -1,13 +1,21 @@
 // Time helpers. Instants are stored in UTC; people see them in the plant's zone.
 
+// Making an Intl.DateTimeFormat costs far more than using one; exports call localDate per cell.
+const dateFormats = new Map<string, Intl.DateTimeFormat>();
+
 /** The calendar date (YYYY-MM-DD) of an instant in a time zone. */
 export function localDate(at: Date, timeZone: string): string {
-	const parts = new Intl.DateTimeFormat('en-CA', {
-		timeZone,
-		year: 'numeric',
-		month: '2-digit',
-		day: '2-digit'
-	}).formatToParts(at);
+	let format = dateFormats.get(timeZone);
+	if (!format) {
+		format = new Intl.DateTimeFormat('en-CA', {
+			timeZone,
+			year: 'numeric',
+			month: '2-digit',
+			day: '2-digit'
+		});
+		dateFormats.set(timeZone, format);
+	}
+	const parts = format.formatToParts(at);
 	const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '';
 	return `${get('year')}-${get('month')}-${get('day')}`;
 }

@@ -17,12 +17,21 @@ export interface GuardRoute {
 	path: string;
 	/** Any one of these roles is enough; 'signed-in' is everybody signed in; 'public' is everybody. */
 	allowedRoles: readonly Role[] | 'signed-in' | 'public';
-	/** 'api' answers 401/403 as JSON; 'page' redirects to sign-in or shows the 403 page. */
-	kind?: 'page' | 'api';
+	/**
+	 * 'api' answers 401/403 as JSON; 'page' redirects to sign-in or shows the 403 page; 'download'
+	 * (a file endpoint that pages link to) redirects to sign-in or answers 403 with the role message
+	 * on SvelteKit's plain error page.
+	 */
+	kind?: 'page' | 'api' | 'download';
 	/** Body of a POST, sent as a urlencoded form. Use input that is refused, so nothing changes. */
 	form?: FormFields;
 	/** What someone allowed gets, when it is not a plain 200. */
 	allowed?: { status: number; location?: string };
+	/**
+	 * Signed-in visitors holding none of allowedRoles but one of these are sent to `location` with a
+	 * 303 instead of being refused (an admin opening /records lands on /records/retention).
+	 */
+	redirects?: { roles: readonly Role[]; location: string };
 	/** What a signed-out visitor gets on a 'public' row, when it is not a plain 200. */
 	signedOut?: { status: number; location?: string };
 }

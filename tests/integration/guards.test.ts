@@ -105,6 +105,20 @@ describe.each(ROUTES.map((r) => [`${r.method} ${r.path} (${describeRoles(r)})`, 
 				expect(location, where).toBe(`/signin?redirectTo=${encodeURIComponent(path)}`);
 				return;
 			}
+			if (route.redirects?.roles.some((r) => visitor.roles!.includes(r))) {
+				expect(res.status, where).toBe(303);
+				expect(location, where).toBe(route.redirects.location);
+				return;
+			}
+			if (kindOf(route) === 'download') {
+				// A file endpoint: SvelteKit's plain error page, still saying why.
+				expect(res.status, where).toBe(403);
+				expect(body, where).toContain(
+					`This page is for ${(route.allowedRoles as Role[]).join(', ')}`
+				);
+				expect(body, where).toContain(`Your roles: ${visitor.roles.join(', ')}`);
+				return;
+			}
 			// The helpful 403 page: says what the page needs, what the visitor holds and what to do.
 			expect(res.status, where).toBe(403);
 			expect(body, where).toContain('Not for your role');

@@ -12,6 +12,7 @@ describe('help pages', () => {
 			'terminals',
 			'certification',
 			'station-gate',
+			'records',
 			'retention'
 		]);
 		for (const page of pages) {
