@@ -29,7 +29,8 @@ test('an operator finds the help pages from the main menu', async ({ page }, tes
 		'How to write a work instruction',
 		'Calculator blocks',
 		'Safety notes for bonding work',
-		'Shop-floor terminals, keyboard and badge scanner'
+		'Shop-floor terminals, keyboard and badge scanner',
+		'Training histories, my records, gate log and audit trail exports'
 	]) {
 		await expect(page.getByRole('link', { name: new RegExp(title) })).toBeVisible();
 	}

@@ -11,7 +11,8 @@ describe('help pages', () => {
 			'safety',
 			'terminals',
 			'certification',
-			'station-gate'
+			'station-gate',
+			'history-and-logs'
 		]);
 		for (const page of pages) {
 			expect(page.title.length).toBeGreaterThan(5);
