@@ -1,4 +1,5 @@
-import { CSV_BOM, csvRow } from '../../csv';
+import { csvRow } from '../../csv';
+import { csvStream } from '../csv-stream';
 import { formatInstant } from '../../audit-view';
 import {
 	auditEventBatches,
@@ -98,54 +99,28 @@ export async function exportAuditCsv(
 	verification.catch(() => {
 		// Reported through the stream below; this only keeps the rejection from going unhandled.
 	});
-	const encoder = new TextEncoder();
-	let started = false;
-	let finished = false;
-	const stream = new ReadableStream<Uint8Array>({
-		async pull(controller) {
-			if (!started) {
-				started = true;
-				controller.enqueue(encoder.encode(CSV_BOM + csvRow(HEADER)));
-				return;
-			}
-			if (finished) {
-				controller.close();
-				return;
-			}
-			const next = await batches.next();
-			if (next.done) {
-				finished = true;
-				const v = await verification;
-				controller.enqueue(
-					encoder.encode(chainTrailer(v, { rows, upToSeq: maxSeq, auditSeq }, new Date(), timeZone))
-				);
-				return;
-			}
-			const text = next.value
-				.map((r) =>
-					csvRow([
-						r.seq,
-						r.at.toISOString(),
-						formatInstant(r.at, timeZone),
-						timeZone,
-						r.actorId,
-						r.actorLabel,
-						r.action,
-						r.entityType,
-						r.entityId,
-						r.reason,
-						r.address,
-						r.oldValues,
-						r.newValues,
-						r.hash
-					])
-				)
-				.join('');
-			controller.enqueue(encoder.encode(text));
-		},
-		async cancel() {
-			await batches.return(undefined);
-		}
+	const stream = csvStream({
+		header: HEADER,
+		batches,
+		line: (r) =>
+			csvRow([
+				r.seq,
+				r.at.toISOString(),
+				formatInstant(r.at, timeZone),
+				timeZone,
+				r.actorId,
+				r.actorLabel,
+				r.action,
+				r.entityType,
+				r.entityId,
+				r.reason,
+				r.address,
+				r.oldValues,
+				r.newValues,
+				r.hash
+			]),
+		trailer: async () =>
+			chainTrailer(await verification, { rows, upToSeq: maxSeq, auditSeq }, new Date(), timeZone)
 	});
 	return { rows, stream, verification, auditSeq };
 }

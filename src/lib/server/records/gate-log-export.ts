@@ -7,7 +7,8 @@ import { db } from '../db';
 import { apiKeys, gateChecks, lines, people, stations } from '../db/schema';
 import { recordAuditNow, type Actor } from '../audit';
 import { plantPeriod } from '../audit/filter';
-import { CSV_BOM, csvRow } from '../../csv';
+import { csvRow } from '../../csv';
+import { csvStream } from '../csv-stream';
 import { formatInstant } from '../../audit-view';
 import { describeGateReason, describeGateWarning } from '../../gate/describe';
 import type { GateReason, GateWarning } from '../../gate/decide';
@@ -243,38 +244,19 @@ export async function exportGateLogCsv(
 		entityType: 'gate_log',
 		newValues: { format: 'csv', filter: described, rows, upToId: maxId }
 	});
-	const batches = gateLogBatches({ ...filter, upToId: maxId });
-	const encoder = new TextEncoder();
-	let started = false;
-	let finished = false;
-	const stream = new ReadableStream<Uint8Array>({
-		async pull(controller) {
-			if (!started) {
-				started = true;
-				controller.enqueue(encoder.encode(CSV_BOM + csvRow(GATE_LOG_HEADER)));
-				return;
-			}
-			if (finished) {
-				controller.close();
-				return;
-			}
-			const next = await batches.next();
-			if (next.done) {
-				finished = true;
-				const at = new Date();
-				const trailer = GATE_LOG_HEADER.map(() => null as unknown);
-				trailer[1] = at.toISOString();
-				trailer[2] = formatInstant(at, timeZone);
-				trailer[3] = timeZone;
-				trailer[10] = GATE_LOG_TRAILER;
-				trailer[12] = gateLogStatement(rows, maxId, auditSeq);
-				controller.enqueue(encoder.encode(csvRow(trailer)));
-				return;
-			}
-			controller.enqueue(encoder.encode(next.value.map((r) => csvLine(r, timeZone)).join('')));
-		},
-		async cancel() {
-			await batches.return(undefined);
+	const stream = csvStream({
+		header: GATE_LOG_HEADER,
+		batches: gateLogBatches({ ...filter, upToId: maxId }),
+		line: (r) => csvLine(r, timeZone),
+		trailer: () => {
+			const at = new Date();
+			const cells: unknown[] = GATE_LOG_HEADER.map(() => null);
+			cells[1] = at.toISOString();
+			cells[2] = formatInstant(at, timeZone);
+			cells[3] = timeZone;
+			cells[10] = GATE_LOG_TRAILER;
+			cells[12] = gateLogStatement(rows, maxId, auditSeq);
+			return csvRow(cells);
 		}
 	});
 	return { rows, stream, auditSeq };

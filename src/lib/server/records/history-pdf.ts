@@ -15,16 +15,16 @@ export const PAGE_W = 595.28;
 export const PAGE_H = 841.89;
 const MARGIN = 40;
 const CONTENT_W = PAGE_W - 2 * MARGIN;
-const BODY_TOP = PAGE_H - 142;
+const BODY_TOP = PAGE_H - 146;
 const BODY_BOTTOM = 56;
 const NAME_SIZE = 18;
-const NAME_BASELINE = PAGE_H - 102;
+const NAME_BASELINE = PAGE_H - 104;
 /** Where the person's name sits on every page, in points from the top-left (for read-back tests). */
 export const NAME_BOX_PT = {
-	x: MARGIN,
+	x: MARGIN - 6,
 	y: PAGE_H - NAME_BASELINE - 22,
-	width: CONTENT_W,
-	height: 32
+	width: CONTENT_W + 12,
+	height: 30
 };
 
 const CELL_SIZE = 8.5;
@@ -307,7 +307,7 @@ class Writer {
 			'panel-50',
 			CONTENT_W - 110
 		);
-		this.text('Training history', MARGIN, PAGE_H - 80, 9, 'bold', 'film-700');
+		this.text('Training history', MARGIN, PAGE_H - 78, 9, 'bold', 'film-700');
 		this.text(
 			this.h.person.displayName,
 			MARGIN,
@@ -317,10 +317,10 @@ class Writer {
 			'panel-900',
 			CONTENT_W
 		);
-		this.text(personLine(this.h), MARGIN, PAGE_H - 118, 9, 'regular', 'panel-700', CONTENT_W);
+		this.text(personLine(this.h), MARGIN, PAGE_H - 122, 9, 'regular', 'panel-700', CONTENT_W);
 		page.drawRectangle({
 			x: MARGIN,
-			y: PAGE_H - 128,
+			y: PAGE_H - 132,
 			width: CONTENT_W,
 			height: 0.75,
 			color: tokenRgb('panel-200')
