@@ -9,6 +9,19 @@ import { APPEND_ONLY_TABLES } from './append-only.js';
 
 export const root = resolve(import.meta.dirname, '..');
 
+// Ports fetch() refuses to connect to (the WHATWG Fetch standard's "bad ports", from port 1000
+// up); the scripts and tests reach the fakes with fetch, so a port offset must not land on one.
+const FETCH_BLOCKED_PORTS = new Set([
+	1719, 1720, 1723, 2049, 3659, 4045, 4190, 5060, 5061, 6000, 6566, 6665, 6666, 6667, 6668, 6669,
+	6679, 6697, 10080
+]);
+
+/** The port, or the next one up that fetch() may use. */
+function fetchablePort(port) {
+	while (FETCH_BLOCKED_PORTS.has(port)) port++;
+	return port;
+}
+
 /**
  * Ports and folders per mode. PADBRIDGE_PORT_OFFSET moves every port, so two checkouts can run
  * their own copies side by side; test mode adds 100 to keep clear of a running `npm start`.
@@ -23,10 +36,10 @@ export function modeConfig(mode) {
 		socket: join(dataDir, 'mariadb', 'mysqld.sock'),
 		dbPort: Number(process.env.DB_PORT ?? 3406 + offset),
 		dbName: mode === 'test' ? 'padbridge_test' : 'padbridge',
-		appPort: Number(process.env.PORT ?? 3000 + offset),
+		appPort: Number(process.env.PORT ?? fetchablePort(3000 + offset)),
 		smtpPort: 2525 + offset,
-		mailWebPort: 8025 + offset,
-		s3Port: 4569 + offset,
+		mailWebPort: fetchablePort(8025 + offset),
+		s3Port: fetchablePort(4569 + offset),
 		s3Dir: join(dataDir, 's3'),
 		mailDir: join(dataDir, 'mail'),
 		runFile: join(dataDir, 'run.json'),

@@ -30,6 +30,7 @@ test('an operator finds the help pages from the main menu', async ({ page }, tes
 		'Calculator blocks',
 		'Safety notes for bonding work',
 		'Shop-floor terminals, keyboard and badge scanner',
+		'Training histories, my records, gate log and audit trail exports',
 		'Retention, legal holds and leavers'
 	]) {
 		await expect(page.getByRole('link', { name: new RegExp(title) })).toBeVisible();

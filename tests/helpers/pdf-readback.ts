@@ -93,3 +93,51 @@ export function fontRows(pdffontsOutput: string): { name: string; embedded: bool
 			return { name: columns[0], embedded: columns[columns.length - 5] === 'yes' };
 		});
 }
+
+/** A box on a page in points from the top-left corner. */
+export type BoxPt = { x: number; y: number; width: number; height: number };
+
+/**
+ * Writes the PDF into `dir` and reads its text layer page by page (pdftotext puts a form feed
+ * between pages), with the page count pdfinfo reports. `pages` is the visual layout; `flat` is
+ * each page in drawing order (-raw) with all white space collapsed to single spaces, so text a
+ * table cell wrapped over several lines reads as one phrase.
+ */
+export async function readPdfPages(
+	bytes: Uint8Array,
+	dir: string,
+	name: string
+): Promise<{ pdfPath: string; pages: string[]; flat: string[]; pageCount: number; fonts: string }> {
+	const pdfPath = path.join(dir, `${name}.pdf`);
+	await writeFile(pdfPath, bytes);
+	const { stdout: text } = await run('pdftotext', ['-layout', pdfPath, '-']);
+	const { stdout: raw } = await run('pdftotext', ['-raw', pdfPath, '-']);
+	const { stdout: info } = await run('pdfinfo', [pdfPath]);
+	const { stdout: fonts } = await run('pdffonts', [pdfPath]);
+	const pageCount = Number(/^Pages:\s+(\d+)/m.exec(info)?.[1] ?? 0);
+	// The text ends with a form feed after the last page.
+	const pages = text.split('\f').slice(0, pageCount);
+	const flat = raw
+		.split('\f')
+		.slice(0, pageCount)
+		.map((p) => p.replace(/\s+/g, ' ').trim());
+	return { pdfPath, pages, flat, pageCount, fonts };
+}
+
+/** Renders one box of one page to a PNG at `dpi`; returns the PNG's path. */
+export async function renderBox(
+	pdfPath: string,
+	page: number,
+	box: BoxPt,
+	dpi: number,
+	outPrefix: string
+): Promise<string> {
+	const px = (pt: number) => String(Math.round((pt * dpi) / 72));
+	await run('pdftoppm', [
+		...['-r', String(dpi), '-png', '-singlefile', '-f', String(page), '-l', String(page)],
+		...['-x', px(box.x), '-y', px(box.y), '-W', px(box.width), '-H', px(box.height)],
+		pdfPath,
+		outPrefix
+	]);
+	return `${outPrefix}.png`;
+}

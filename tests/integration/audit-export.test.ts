@@ -80,6 +80,9 @@ describe('exportAuditCsv', () => {
 		expect(text.startsWith('\uFEFF')).toBe(true);
 		const table = parseCsv(text.slice(1));
 		const [header, ...body] = table;
+		// The last record states the chain verification (see 'states the chain verification' below).
+		const trailer = body.pop()!;
+		expect(trailer[header.indexOf('action')]).toBe('audit.chain_verification');
 		expect(header.slice(0, 7)).toEqual([
 			'seq',
 			'at_utc',
@@ -200,7 +203,9 @@ describe('GET /audit/export.csv', () => {
 		const bytes = new Uint8Array(await res.arrayBuffer());
 		expect([...bytes.slice(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
 		const table = parseCsv(new TextDecoder('utf-8', { ignoreBOM: true }).decode(bytes).slice(1));
-		expect(table).toHaveLength(1 + 1 + EVIL_REASONS.length);
+		// Header, the line's create and switches, and the chain statement last.
+		expect(table).toHaveLength(1 + 1 + EVIL_REASONS.length + 1);
+		expect(table[table.length - 1][6]).toBe('audit.chain_verification');
 		for (const r of table) for (const c of r) expect(c).not.toMatch(/^[=+\-@\t\r]/);
 
 		const [quality] = await db

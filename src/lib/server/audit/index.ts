@@ -16,6 +16,7 @@ import {
 } from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../db';
 import { auditChain, auditEvents } from '../db/schema';
+import { z } from 'zod';
 import { auditRowHash, canonicalJson, GENESIS_HASH } from './chain';
 
 export interface Actor {
@@ -82,12 +83,33 @@ export interface ChainProblem {
 	problem: string;
 }
 
-/** Re-computes every hash in order; reports edited rows, removed rows and a moved chain head. */
-export async function verifyAuditChain(conn: DbOrTx = db): Promise<{
+export interface ChainVerification {
 	ok: boolean;
+	/** Rows read and re-hashed. */
 	checked: number;
 	problems: ChainProblem[];
-}> {
+	/** The chain head at the moment of the check: its seq and hash (0 and the genesis hash when empty). */
+	headSeq: number;
+	headHash: string;
+	/** Every row from seq 1 up to this one verifies (the head when ok). */
+	verifiedUpToSeq: number;
+	/** The first seq with a problem; null when the chain is intact. */
+	brokenAtSeq: number | null;
+}
+
+/**
+ * Re-computes every hash in order; reports edited rows, removed rows and a moved chain head. By
+ * default it reads one consistent snapshot of the trail (a repeatable-read transaction that only reads),
+ * so events written while it runs neither show up half-way nor look like a broken head.
+ */
+export async function verifyAuditChain(conn?: DbOrTx): Promise<ChainVerification> {
+	if (!conn) {
+		// (No "read only": drizzle joins it to the snapshot clause without the comma MariaDB needs.)
+		return db.transaction((tx) => verifyAuditChain(tx), {
+			isolationLevel: 'repeatable read',
+			withConsistentSnapshot: true
+		});
+	}
 	const problems: ChainProblem[] = [];
 	let prevHash = GENESIS_HASH;
 	let expectedSeq = 1;
@@ -125,14 +147,121 @@ export async function verifyAuditChain(conn: DbOrTx = db): Promise<{
 		}
 		if (rows.length < pageSize) break;
 	}
+	const breaks = problems.map((p) => p.seq);
 	const [head] = await conn.select().from(auditChain).where(eq(auditChain.id, 1));
 	if (head && (head.lastSeq !== lastSeq || head.lastHash !== prevHash)) {
 		problems.push({
 			seq: head.lastSeq,
-			problem: 'the newest rows are missing (chain head points past them)'
+			problem:
+				head.lastSeq > lastSeq
+					? 'the newest rows are missing (chain head points past them)'
+					: 'the chain head does not match the newest row'
 		});
+		// Where the break starts: the first missing row, the first row past the head, or the head.
+		breaks.push(
+			head.lastSeq > lastSeq
+				? lastSeq + 1
+				: head.lastSeq < lastSeq
+					? head.lastSeq + 1
+					: head.lastSeq
+		);
 	}
-	return { ok: problems.length === 0, checked, problems };
+	const brokenAtSeq = breaks.length ? Math.min(...breaks) : null;
+	return {
+		ok: problems.length === 0,
+		checked,
+		problems,
+		headSeq: head?.lastSeq ?? lastSeq,
+		headHash: head?.lastHash ?? prevHash,
+		verifiedUpToSeq: brokenAtSeq == null ? lastSeq : brokenAtSeq - 1,
+		brokenAtSeq
+	};
+}
+
+/** The verification in words, as exports and pages state it. */
+export function describeChainVerification(
+	v: Pick<
+		ChainVerification,
+		'ok' | 'checked' | 'headSeq' | 'headHash' | 'verifiedUpToSeq' | 'brokenAtSeq'
+	> & { problems: ChainProblem[] | number; firstProblem?: string }
+): string {
+	if (v.ok)
+		return v.headSeq === 0
+			? 'Audit chain verified: the trail is empty.'
+			: `Audit chain verified up to seq ${v.headSeq}: all ${v.checked} rows from seq 1 match their hashes and link to the row before, and the chain head matches the newest row (hash ${v.headHash.slice(0, 16)}…).`;
+	const count = Array.isArray(v.problems) ? v.problems.length : v.problems;
+	const first =
+		v.firstProblem ??
+		(Array.isArray(v.problems)
+			? [...v.problems].sort((a, b) => a.seq - b.seq)[0]?.problem
+			: undefined);
+	return `Audit chain BROKEN at seq ${v.brokenAtSeq}${first ? ` (${first})` : ''}: ${count} problem${count === 1 ? '' : 's'} in all; only rows up to seq ${v.verifiedUpToSeq} verify. A row was changed or removed after it was written.`;
+}
+
+/**
+ * Verifies the whole chain and records that it did ('audit.verify' with the result), so the last
+ * verification can be shown without reading the trail again.
+ */
+export async function verifyAuditChainRecorded(actor: Actor | null, via: 'page' | 'export') {
+	const started = performance.now();
+	const result = await verifyAuditChain();
+	const ms = Math.round(performance.now() - started);
+	const sorted = [...result.problems].sort((a, b) => a.seq - b.seq);
+	await recordAuditNow(actor, {
+		action: 'audit.verify',
+		entityType: 'audit_trail',
+		newValues: {
+			ok: result.ok,
+			checked: result.checked,
+			problems: result.problems.length,
+			firstProblem: sorted[0]?.problem ?? null,
+			headSeq: result.headSeq,
+			headHash: result.headHash,
+			verifiedUpToSeq: result.verifiedUpToSeq,
+			brokenAtSeq: result.brokenAtSeq,
+			via
+		}
+	});
+	return { ...result, ms };
+}
+
+const verifyRecord = z.object({
+	ok: z.boolean(),
+	checked: z.number(),
+	problems: z.number(),
+	firstProblem: z.string().nullable().optional(),
+	headSeq: z.number(),
+	headHash: z.string(),
+	verifiedUpToSeq: z.number(),
+	brokenAtSeq: z.number().nullable()
+});
+
+/**
+ * The newest recorded verification of the chain (from the page or an export): when, by whom, and
+ * the result; null when none has been recorded in the current form.
+ */
+export async function lastChainVerification() {
+	const [row] = await db
+		.select({
+			seq: auditEvents.seq,
+			at: auditEvents.at,
+			actorLabel: auditEvents.actorLabel,
+			newValues: auditEvents.newValues
+		})
+		.from(auditEvents)
+		.where(eq(auditEvents.action, 'audit.verify'))
+		.orderBy(desc(auditEvents.seq))
+		.limit(1);
+	const parsed = row ? verifyRecord.safeParse(row.newValues) : null;
+	if (!row || !parsed?.success) return null;
+	const v = parsed.data;
+	return {
+		seq: row.seq,
+		at: row.at,
+		by: row.actorLabel,
+		...v,
+		statement: describeChainVerification({ ...v, firstProblem: v.firstProblem ?? undefined })
+	};
 }
 
 export interface AuditFilter {

@@ -1,17 +1,10 @@
-// The certificate as a PDF: one A4 landscape page, vector QR, fonts subset to the page's text.
-//
-// Fonts: pdf-lib's own subsetting drops glyphs when rendered, and full CJK embedding makes a
-// multi-megabyte file, so each font is subset with harfbuzz (subset-font) to the characters this
-// document uses and embedded whole; the mark features are off so Vietnamese marks keep their
-// precomposed positions (see shared STACK notes, "Fonts in PDFs").
-import { readFile } from 'node:fs/promises';
-import path from 'node:path';
-import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
-import * as fontkitModule from '@pdf-lib/fontkit';
-import type { Font as FontkitFont } from '@pdf-lib/fontkit';
-import subsetFont from 'subset-font';
+// The certificate as a PDF: one A4 landscape page, vector QR, fonts subset to the page's text
+// (the font handling is shared with the other PDFs, see ../pdf/fonts.ts).
+import { PDFDocument, rgb, type PDFPage } from 'pdf-lib';
 import QRCode from 'qrcode';
 import { formatLocal, localDate } from '../../time';
+import { PdfFonts, type Weight } from '../pdf/fonts';
+import { tokenRgb, type Token } from '../pdf/colors';
 
 export type CertificatePdfInput = {
 	number: string;
@@ -29,85 +22,6 @@ export type CertificatePdfInput = {
 	issuer: { name: string; meaning: 'issued'; signedAt: Date };
 	verifyUrl: string;
 };
-
-// These mirror the colour tokens in tailwind.config.ts (panel, film, bond); keep them in step.
-const TOKEN_HEX = {
-	'panel-50': '#f4f6f8',
-	'panel-200': '#cbd3dc',
-	'panel-500': '#55657b',
-	'panel-700': '#343f50',
-	'panel-900': '#161c25',
-	'film-100': '#feecc7',
-	'film-500': '#e5830b',
-	'film-700': '#9a4609',
-	'bond-700': '#1d6338'
-} as const;
-
-type Token = keyof typeof TOKEN_HEX;
-
-function tokenRgb(token: Token): RGB {
-	const hex = TOKEN_HEX[token];
-	const channel = (at: number) => parseInt(hex.slice(at, at + 2), 16) / 255;
-	return rgb(channel(1), channel(3), channel(5));
-}
-
-const FONT_FILES = {
-	regular: '@expo-google-fonts/noto-sans/400Regular/NotoSans_400Regular.ttf',
-	bold: '@expo-google-fonts/noto-sans/700Bold/NotoSans_700Bold.ttf',
-	cjk: '@expo-google-fonts/noto-sans-sc/400Regular/NotoSansSC_400Regular.ttf'
-} as const;
-
-type FontKey = keyof typeof FONT_FILES;
-type Weight = 'regular' | 'bold';
-// subset-font (fontverter) recognises only a Buffer, not a bare Uint8Array.
-type LoadedFont = { bytes: Buffer; face: FontkitFont };
-
-// The UMD build (node) exposes fontkit as the default export; the types declare named exports.
-const fontkit = ((fontkitModule as unknown as { default?: typeof fontkitModule }).default ??
-	fontkitModule) as typeof fontkitModule;
-
-let fontsPromise: Promise<Record<FontKey, LoadedFont>> | undefined;
-
-/** Reads and parses the three TTFs once per process. */
-function loadFonts(): Promise<Record<FontKey, LoadedFont>> {
-	fontsPromise ??= (async () => {
-		const entries = await Promise.all(
-			(Object.keys(FONT_FILES) as FontKey[]).map(async (key) => {
-				const bytes = await readFile(path.join(process.cwd(), 'node_modules', FONT_FILES[key]));
-				return [key, { bytes, face: fontkit.create(bytes) }] as const;
-			})
-		);
-		return Object.fromEntries(entries) as Record<FontKey, LoadedFont>;
-	})();
-	fontsPromise.catch(() => (fontsPromise = undefined));
-	return fontsPromise;
-}
-
-type Run = { text: string; font: FontKey };
-
-/**
- * Splits text into runs by which font has the glyph: Noto Sans (in the wanted weight) first,
- * Noto Sans SC for what it lacks. CJK has one weight here, so bold CJK prints regular.
- */
-function splitRuns(text: string, weight: Weight, fonts: Record<FontKey, LoadedFont>): Run[] {
-	const runs: Run[] = [];
-	for (const char of text) {
-		const codePoint = char.codePointAt(0) ?? 0;
-		const latin: FontKey = weight;
-		// Spaces and punctuation stay with the current run so a name does not flip fonts mid-word.
-		const neutral = /[\s\p{P}]/u.test(char) && runs.length > 0;
-		const font: FontKey = neutral
-			? runs[runs.length - 1].font
-			: fonts[latin].face.hasGlyphForCodePoint(codePoint) ||
-				  !fonts.cjk.face.hasGlyphForCodePoint(codePoint)
-				? latin
-				: 'cjk';
-		const last = runs[runs.length - 1];
-		if (last && last.font === font) last.text += char;
-		else runs.push({ text: char, font });
-	}
-	return runs;
-}
 
 type TextItem = {
 	text: string;
@@ -335,8 +249,6 @@ function drawQr(page: PDFPage, text: string, x: number, y: number, sizePt: numbe
 	}
 }
 
-type PlacedItem = TextItem & { runs: Run[] };
-
 function createDocument(input: CertificatePdfInput): Promise<PDFDocument> {
 	return PDFDocument.create().then((doc) => {
 		doc.setTitle(`Certificate ${input.number}`);
@@ -351,34 +263,13 @@ function createDocument(input: CertificatePdfInput): Promise<PDFDocument> {
 
 /** Renders one certificate; fonts are cached per process, subset per document. */
 export async function renderCertificatePdf(input: CertificatePdfInput): Promise<Uint8Array> {
-	const fonts = await loadFonts();
-	const items: PlacedItem[] = layoutText(input).map((item) => ({
-		...item,
-		runs: splitRuns(item.text, item.weight ?? 'regular', fonts)
-	}));
-
-	const usedText: Record<FontKey, string> = { regular: '', bold: '', cjk: '' };
-	for (const item of items) for (const run of item.runs) usedText[run.font] += run.text;
-
+	const items = layoutText(input);
 	const doc = await createDocument(input);
-	doc.registerFontkit(fontkit as unknown as Parameters<PDFDocument['registerFontkit']>[0]);
-
-	const embedded: Partial<Record<FontKey, PDFFont>> = {};
-	await Promise.all(
-		(Object.keys(usedText) as FontKey[])
-			.filter((key) => usedText[key].length > 0)
-			.map(async (key) => {
-				const subset = await subsetFont(fonts[key].bytes, usedText[key], {
-					targetFormat: 'truetype'
-				});
-				// liga off as well: a ligature glyph (fi) loses its text in pdftotext's reading.
-				embedded[key] = await doc.embedFont(new Uint8Array(subset), {
-					subset: false,
-					features: { ccmp: false, mark: false, mkmk: false, liga: false }
-				});
-			})
+	const fonts = await PdfFonts.embed(
+		doc,
+		items.map((item) => [item.text, item.weight ?? 'regular'] as [string, Weight])
 	);
-	drawPage(doc, input, items, embedded);
+	drawPage(doc, input, items, fonts);
 	return doc.save({ useObjectStreams: true });
 }
 
@@ -390,23 +281,15 @@ export async function renderCertificatePdfWithStandardFonts(
 	input: CertificatePdfInput
 ): Promise<Uint8Array> {
 	const doc = await createDocument(input);
-	const embedded: Partial<Record<FontKey, PDFFont>> = {
-		regular: await doc.embedFont(StandardFonts.Helvetica),
-		bold: await doc.embedFont(StandardFonts.HelveticaBold)
-	};
-	const items: PlacedItem[] = layoutText(input).map((item) => ({
-		...item,
-		runs: [{ text: item.text, font: item.weight ?? 'regular' }]
-	}));
-	drawPage(doc, input, items, embedded);
+	drawPage(doc, input, layoutText(input), await PdfFonts.standard(doc));
 	return doc.save({ useObjectStreams: true });
 }
 
 function drawPage(
 	doc: PDFDocument,
 	input: CertificatePdfInput,
-	items: PlacedItem[],
-	embedded: Partial<Record<FontKey, PDFFont>>
+	items: TextItem[],
+	fonts: PdfFonts
 ): void {
 	const page = doc.addPage([PAGE_W, PAGE_H]);
 	page.drawRectangle({ x: 0, y: 0, width: PAGE_W, height: PAGE_H, color: tokenRgb('panel-50') });
@@ -442,22 +325,18 @@ function drawPage(
 	});
 
 	for (const item of items) {
+		const weight = item.weight ?? 'regular';
 		let size = item.size;
-		const widthAt = (at: number) =>
-			item.runs.reduce((sum, run) => sum + embedded[run.font]!.widthOfTextAtSize(run.text, at), 0);
+		const widthAt = (at: number) => fonts.width(item.text, at, weight);
 		if (item.maxWidth) while (size > 6 && widthAt(size) > item.maxWidth) size -= 0.5;
-		let x = item.align === 'center' ? item.x - widthAt(size) / 2 : item.x;
-		for (const run of item.runs) {
-			const font = embedded[run.font]!;
-			page.drawText(run.text, {
-				x,
-				y: item.y,
-				size,
-				font,
-				color: tokenRgb(item.color ?? 'panel-900')
-			});
-			x += font.widthOfTextAtSize(run.text, size);
-		}
+		const x = item.align === 'center' ? item.x - widthAt(size) / 2 : item.x;
+		fonts.draw(page, item.text, {
+			x,
+			y: item.y,
+			size,
+			weight,
+			color: tokenRgb(item.color ?? 'panel-900')
+		});
 	}
 
 	const qrColumnX = PAGE_W - MARGIN - 200;

@@ -13,6 +13,7 @@ describe('help pages', () => {
 			'certification',
 			'station-gate',
 			'records',
+			'history-and-logs',
 			'retention'
 		]);
 		for (const page of pages) {

@@ -4,8 +4,7 @@ import {
 	actorFrom,
 	listAuditEvents,
 	listAuditFacets,
-	recordAuditNow,
-	verifyAuditChain
+	verifyAuditChainRecorded
 } from '$lib/server/audit';
 import { auditFilterFrom } from '$lib/server/audit/filter';
 import { requireRole } from '$lib/server/auth/guards';
@@ -49,14 +48,8 @@ export const actions: Actions = {
 	/** Re-computes the whole hash chain: on request only, since it reads every row. */
 	verify: async (event) => {
 		requireRole(event, 'quality', 'admin');
-		const started = performance.now();
-		const result = await verifyAuditChain();
-		const ms = Math.round(performance.now() - started);
-		await recordAuditNow(actorFrom(event), {
-			action: 'audit.verify',
-			entityType: 'audit_trail',
-			newValues: { ok: result.ok, checked: result.checked, problems: result.problems.length }
-		});
+		const result = await verifyAuditChainRecorded(actorFrom(event), 'page');
+		const ms = result.ms;
 		return {
 			verify: {
 				ok: result.ok,

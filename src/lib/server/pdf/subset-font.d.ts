@@ -1,4 +1,4 @@
-// subset-font ships no types; this is the part of its API the certificate PDF uses.
+// subset-font ships no types; this is the part of its API the PDFs use.
 declare module 'subset-font' {
 	export default function subsetFont(
 		font: Uint8Array,
