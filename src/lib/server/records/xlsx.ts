@@ -111,12 +111,26 @@ export function xlsxStream(
 			if (committing && !committed) committing.then(done);
 		});
 
+	// One style object per column, shared by all its cells: exceljs caches a style's id by the
+	// object, so a fresh object per cell (what it makes from the column style) would be resolved
+	// again for every cell, which took two thirds of the export's time.
+	const cellStyles = RECORD_COLUMNS.map((c) =>
+		NUM_FMT[c.kind] ? { numFmt: NUM_FMT[c.kind] } : {}
+	) as Partial<ExcelJS.Style>[];
+
 	async function addRows(): Promise<boolean> {
 		for (let n = 0; n < ROWS_PER_STEP; n++) {
 			const next = await source.next();
 			if (next.done) return false;
 			const r = next.value;
-			sheet.addRow(RECORD_COLUMNS.map((c) => xlsxCell(c.kind, c.value(r, timeZone)))).commit();
+			// Empty cells are left out (undefined), not written as styled blanks.
+			const row = sheet.addRow(
+				RECORD_COLUMNS.map((c) => xlsxCell(c.kind, c.value(r, timeZone)) ?? undefined)
+			);
+			row.eachCell((cell, col) => {
+				cell.style = cellStyles[col - 1];
+			});
+			row.commit();
 		}
 		return true;
 	}
