@@ -14,7 +14,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { db, pool } from '../../src/lib/server/db';
 import { changeCertificateState } from '../../src/lib/server/certificates/register';
 import { insertSignature } from '../../src/lib/server/instructions/signatures';
-import { NAME_BOX_PT } from '../../src/lib/server/records/history-pdf';
+import { NAME_BOX_PT, renderHistoryPdf } from '../../src/lib/server/records/history-pdf';
+import { trainingHistory } from '../../src/lib/server/records/history';
 import { ROLES } from '../../src/lib/roles';
 import {
 	appDb,
@@ -343,6 +344,20 @@ describe('training history PDF', () => {
 		// All 45 acknowledgements are there, each once, across the pages.
 		expect(text.match(/ rev [A-O] 2025-0[1-3]-\d{2} 12:00 PIN/g)).toHaveLength(45);
 		expect(text.match(/ (Passed|Failed)/g)).toHaveLength(30);
+	});
+
+	it('prints Hangul with the Korean font (names such as 김민준 in the demo plant)', async () => {
+		const h = (await trainingHistory(person.id))!;
+		const bytes = await renderHistoryPdf(
+			{ ...h, person: { ...h.person, displayName: '김민준' } },
+			{ generatedBy: '박서연' }
+		);
+		const pdf = await readPdfPages(bytes, dir, 'hangul');
+		expect(pdf.flat[0]).toContain('김민준');
+		expect(pdf.flat[0]).toContain('by 박서연');
+		const fonts = fontRows(pdf.fonts);
+		expect(fonts.some((r) => r.name.includes('NotoSansKR'))).toBe(true);
+		for (const row of fonts) expect(row, row.name).toMatchObject({ embedded: true });
 	});
 
 	it('is 404 for a person who does not exist', async () => {

@@ -1,5 +1,6 @@
 // Text in Padbridge's PDFs (certificates, training histories): Noto Sans for Latin, Vietnamese,
-// Greek and Cyrillic, Noto Sans SC for the CJK characters it lacks, picked per run of text.
+// Greek and Cyrillic, Noto Sans SC for the Chinese and Japanese characters it lacks and Noto Sans
+// KR for Hangul, picked per run of text.
 //
 // pdf-lib's own subsetting drops glyphs when rendered, and full CJK embedding makes a
 // multi-megabyte file, so each font is subset with harfbuzz (subset-font) to the characters the
@@ -15,7 +16,8 @@ import subsetFont from 'subset-font';
 const FONT_FILES = {
 	regular: '@expo-google-fonts/noto-sans/400Regular/NotoSans_400Regular.ttf',
 	bold: '@expo-google-fonts/noto-sans/700Bold/NotoSans_700Bold.ttf',
-	cjk: '@expo-google-fonts/noto-sans-sc/400Regular/NotoSansSC_400Regular.ttf'
+	cjk: '@expo-google-fonts/noto-sans-sc/400Regular/NotoSansSC_400Regular.ttf',
+	hangul: '@expo-google-fonts/noto-sans-kr/400Regular/NotoSansKR_400Regular.ttf'
 } as const;
 
 export type FontKey = keyof typeof FONT_FILES;
@@ -31,7 +33,7 @@ const fontkit = ((fontkitModule as unknown as { default?: typeof fontkitModule }
 
 let fontsPromise: Promise<LoadedFonts> | undefined;
 
-/** Reads and parses the three TTFs once per process. */
+/** Reads and parses the TTFs once per process. */
 function loadFonts(): Promise<LoadedFonts> {
 	fontsPromise ??= (async () => {
 		const entries = await Promise.all(
@@ -47,8 +49,8 @@ function loadFonts(): Promise<LoadedFonts> {
 }
 
 /**
- * Splits text into runs by which font has the glyph: Noto Sans (in the wanted weight) first,
- * Noto Sans SC for what it lacks. CJK has one weight here, so bold CJK prints regular.
+ * Splits text into runs by which font has the glyph: Noto Sans (in the wanted weight) first, then
+ * Noto Sans SC, then Noto Sans KR. Those have one weight here, so bold CJK prints regular.
  */
 function splitRuns(text: string, weight: Weight, fonts: LoadedFonts): Run[] {
 	const runs: Run[] = [];
@@ -58,10 +60,9 @@ function splitRuns(text: string, weight: Weight, fonts: LoadedFonts): Run[] {
 		const neutral = /[\s\p{P}]/u.test(char) && runs.length > 0;
 		const font: FontKey = neutral
 			? runs[runs.length - 1].font
-			: fonts[weight].face.hasGlyphForCodePoint(codePoint) ||
-				  !fonts.cjk.face.hasGlyphForCodePoint(codePoint)
-				? weight
-				: 'cjk';
+			: (([weight, 'cjk', 'hangul'] as const).find((key) =>
+					fonts[key].face.hasGlyphForCodePoint(codePoint)
+				) ?? weight);
 		const last = runs[runs.length - 1];
 		if (last && last.font === font) last.text += char;
 		else runs.push({ text: char, font });
@@ -96,7 +97,8 @@ export class PdfFonts {
 		const used: Record<FontKey, Set<string>> = {
 			regular: new Set(),
 			bold: new Set(),
-			cjk: new Set()
+			cjk: new Set(),
+			hangul: new Set()
 		};
 		for (const [text, weight] of texts) {
 			for (const run of splitRuns(text, weight, fonts))

@@ -373,9 +373,27 @@ class Writer {
 		this.y -= height;
 	}
 
+	/** A row's cells as wrapped lines, and the row's height. */
+	private layoutRow(s: Section, row: Cell[]) {
+		const maxLines = Math.floor((BODY_TOP - BODY_BOTTOM - 64) / LINE_H);
+		const cells = row.map((cell, i) => {
+			const width = s.columns[i].share * CONTENT_W - 2 * PAD_X;
+			let lines = paragraphs(cell).flatMap(([text, weight]) =>
+				wrap(this.fonts, text, width, CELL_SIZE, weight).map((l) => ({ text: l, weight }))
+			);
+			// A row taller than a whole page is cut with an ellipsis rather than lost off the page.
+			if (lines.length > maxLines)
+				lines = [...lines.slice(0, maxLines - 1), { text: ELLIPSIS, weight: 'regular' as Weight }];
+			const color = typeof cell === 'string' ? 'panel-900' : (cell.color ?? 'panel-900');
+			return { lines, color };
+		});
+		return { cells, height: Math.max(...cells.map((c) => c.lines.length)) * LINE_H + 2 * PAD_Y };
+	}
+
 	section(s: Section) {
-		// Keep the heading with the column header and at least one row.
-		this.room(20 + 24 + 2 * LINE_H + 2 * PAD_Y);
+		const rows = s.rows.map((row) => this.layoutRow(s, row));
+		// Keep the heading with the column header and the first row (or the "none" line).
+		this.room(20 + 24 + (rows[0]?.height ?? 2 * LINE_H + 2 * PAD_Y));
 		this.heading(s.title, s.rows.length);
 		if (!s.rows.length) {
 			this.text(s.empty, MARGIN, this.y - 10, 9, 'regular', 'panel-500');
@@ -384,20 +402,7 @@ class Writer {
 		}
 		this.tableHeader(s.columns);
 		const xs = this.columnX(s.columns);
-		const maxLines = Math.floor((BODY_TOP - BODY_BOTTOM - 64) / LINE_H);
-		for (const row of s.rows) {
-			const cells = row.map((cell, i) => {
-				const width = s.columns[i].share * CONTENT_W - 2 * PAD_X;
-				let lines = paragraphs(cell).flatMap(([text, weight]) =>
-					wrap(this.fonts, text, width, CELL_SIZE, weight).map((l) => ({ text: l, weight }))
-				);
-				// A row taller than a whole page is cut with an ellipsis rather than lost off the page.
-				if (lines.length > maxLines)
-					lines = [...lines.slice(0, maxLines - 1), { text: ELLIPSIS, weight: 'regular' }];
-				const color = typeof cell === 'string' ? 'panel-900' : (cell.color ?? 'panel-900');
-				return { lines, color };
-			});
-			const height = Math.max(...cells.map((c) => c.lines.length)) * LINE_H + 2 * PAD_Y;
+		for (const { cells, height } of rows) {
 			if (this.room(height)) {
 				this.heading(s.title, null, true);
 				this.tableHeader(s.columns);
