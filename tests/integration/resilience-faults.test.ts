@@ -7,9 +7,7 @@
 // and the gate again, SQL invariants hold (nothing half-written, the audit chain verifies), and a
 // retry succeeds exactly once.
 //
-// Adding a write is one row in CASES. The retention run's row comes when the run exists: its
-// `write` calls the run, `partialSql` counts the dispositions it wrote, `nothingWritten` /
-// `writtenOnce` check its records and dispositions, `again` proves a second run disposes nothing.
+// Adding a write is one row in CASES.
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import mysql from 'mysql2/promise';
 import {
@@ -34,6 +32,7 @@ import { createApiKey } from '../../src/lib/server/apikeys';
 import { evaluateAndIssue } from '../../src/lib/server/certificates/issue';
 import { startAttempt, submitAttempt } from '../../src/lib/server/training/checks/index';
 import { grantSupervisedRun } from '../../src/lib/server/gate/supervised';
+import { runRetention } from '../../src/lib/server/records/retention';
 import { checkStationAccess } from '../../src/lib/server/gate';
 import { displayStatus, pickEffective } from '../../src/lib/server/instructions/effective';
 import { Refusal } from '../../src/lib/server/errors';
@@ -55,7 +54,14 @@ let gateKey: string;
 let author: TestPerson;
 let approver: TestPerson;
 /** Highest ids before this file ran: the invariants cover every row written since. */
-const base = { certificate: 0, revision: 0, attempt: 0, supervisedRun: 0, auditSeq: 0 };
+const base = {
+	certificate: 0,
+	revision: 0,
+	attempt: 0,
+	supervisedRun: 0,
+	retentionRun: 0,
+	auditSeq: 0
+};
 const survived: string[] = [];
 
 const count = async (sql: string, params: unknown[] = []) =>
@@ -162,6 +168,12 @@ async function expectInvariants() {
 			     AND a.entity_type = 'supervised_run' AND a.entity_id = r.id) <> 1
 			  OR NOT EXISTS (SELECT 1 FROM mail_outbox m
 			     WHERE m.dedupe_key LIKE CONCAT('supervised_run:run:', r.id, ':%')))`,
+		'anonymised person without their one disposition and audit row': `
+			SELECT p.id FROM people p WHERE p.anonymised_at IS NOT NULL AND (
+			  (SELECT COUNT(*) FROM retention_dispositions d WHERE d.entity_type = 'person'
+			     AND d.entity_id = p.id AND d.action = 'anonymised') <> 1
+			  OR (SELECT COUNT(*) FROM audit_events a WHERE a.action = 'person.anonymised'
+			     AND a.entity_type = 'person' AND a.entity_id = p.id) <> 1)`,
 		'audit row of a change that is not there': `
 			SELECT a.seq FROM audit_events a WHERE a.seq > ${base.auditSeq} AND (
 			  (a.action = 'certificate.issued' AND NOT EXISTS (SELECT 1 FROM certificates c WHERE c.id = a.entity_id))
@@ -170,7 +182,9 @@ async function expectInvariants() {
 			  OR (a.action = 'attempt.submitted' AND NOT EXISTS (
 			        SELECT 1 FROM check_attempts t WHERE t.id = a.entity_id AND t.state <> 'open'))
 			  OR (a.action = 'supervised_run.granted' AND NOT EXISTS (
-			        SELECT 1 FROM supervised_runs r WHERE r.id = a.entity_id)))`
+			        SELECT 1 FROM supervised_runs r WHERE r.id = a.entity_id))
+			  OR (a.action = 'person.anonymised' AND NOT EXISTS (
+			        SELECT 1 FROM people p WHERE p.id = a.entity_id AND p.anonymised_at IS NOT NULL)))`
 	};
 	for (const [what, sql] of Object.entries(offenders)) {
 		const rows = await queryRows(appDb(), sql);
@@ -496,9 +510,66 @@ const CASES: FaultCase<unknown>[] = [
 			expect((err as Refusal)?.status).toBe(409);
 			expect(await runsOf(c.op.id)).toBe(1);
 		}
+	}),
+	defineCase<{ leaver: DbPerson; name: string }>({
+		point: 'retention-run',
+		prepare: async () => {
+			const leaver = await person(['operator'], { line: 'L1' });
+			// Left in 2001: past any training-records period the rules allow (at most decades).
+			await queryRows(
+				appDb(),
+				"UPDATE people SET active = 0, employment_ended_on = '2001-01-31' WHERE id = ?",
+				[leaver.id]
+			);
+			return { leaver, name: leaver.displayName };
+		},
+		write: () => runRetention({ dryRun: false, actor: { ...approver.actor, id: approver.id } }),
+		partialSql: () => [
+			'SELECT COUNT(*) FROM retention_runs WHERE dry_run = 0 AND id > ?',
+			[base.retentionRun]
+		],
+		nothingWritten: async (c) => {
+			const [p] = await queryRows<{ name: string; anonymised_at: Date | null }>(
+				appDb(),
+				'SELECT display_name AS name, anonymised_at FROM people WHERE id = ?',
+				[c.leaver.id]
+			);
+			expect(p).toEqual({ name: c.name, anonymised_at: null });
+			expect(await dispositionsOf(c.leaver.id)).toBe(0);
+			expect(
+				await count('SELECT COUNT(*) FROM retention_runs WHERE dry_run = 0 AND id > ?', [
+					base.retentionRun
+				])
+			).toBe(0);
+		},
+		writtenOnce: async (c) => {
+			const [p] = await queryRows<{ name: string; anonymised_at: Date | null }>(
+				appDb(),
+				'SELECT display_name AS name, anonymised_at FROM people WHERE id = ?',
+				[c.leaver.id]
+			);
+			expect(p.name).not.toBe(c.name);
+			expect(p.anonymised_at).not.toBeNull();
+			expect(await dispositionsOf(c.leaver.id)).toBe(1);
+			expect(await auditCount('person.anonymised', 'person', c.leaver.id)).toBe(1);
+		},
+		again: async (c) => {
+			const second = await runRetention({
+				dryRun: false,
+				actor: { ...approver.actor, id: approver.id }
+			});
+			expect(second.plan.people.map((p) => p.id)).not.toContain(c.leaver.id);
+			expect(await dispositionsOf(c.leaver.id)).toBe(1);
+			expect(await auditCount('person.anonymised', 'person', c.leaver.id)).toBe(1);
+		}
 	})
-	// retention-run: one more row here once the retention run exists (see the note at the top).
 ];
+
+const dispositionsOf = (personId: number) =>
+	count(
+		"SELECT COUNT(*) FROM retention_dispositions WHERE entity_type = 'person' AND entity_id = ?",
+		[String(personId)]
+	);
 
 async function revisionRows(instructionId: number) {
 	const rows = await queryRows<{ id: number; state: RevisionState; effective_from: Date | null }>(
@@ -556,6 +627,7 @@ beforeAll(async () => {
 		appDb(),
 		`SELECT (SELECT MAX(id) FROM certificates) AS certificate, (SELECT MAX(id) FROM revisions) AS revision,
 		   (SELECT MAX(id) FROM check_attempts) AS attempt, (SELECT MAX(id) FROM supervised_runs) AS supervisedRun,
+		   (SELECT MAX(id) FROM retention_runs) AS retentionRun,
 		   (SELECT MAX(seq) FROM audit_events) AS auditSeq`
 	);
 	for (const k of Object.keys(base) as (keyof typeof base)[]) base[k] = Number(b[k] ?? 0);

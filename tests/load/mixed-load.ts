@@ -73,6 +73,7 @@ async function buildRoutes(): Promise<Route[]> {
 	const operator = await cookieOf('operator');
 	const lead = await cookieOf('lead');
 	const quality = await cookieOf('quality');
+	const hr = await cookieOf('hr');
 	const get = (path: string, cookie: string): Req => ({
 		method: 'GET',
 		path,
@@ -149,9 +150,20 @@ async function buildRoutes(): Promise<Route[]> {
 			connections: 1,
 			requests: [get('/audit/export.csv?action=certificate.issued', quality)],
 			looksRight: (body, type) => type.startsWith('text/csv') && body.includes('certificate.issued')
+		},
+		{
+			name: 'hr: training records CSV export',
+			connections: 1,
+			requests: [get('/records/export.csv?line=L1', hr)],
+			looksRight: (body, type) => type.startsWith('text/csv') && body.split('\n').length > 2
+		},
+		{
+			name: 'hr: training records XLSX export',
+			connections: 1,
+			requests: [get('/records/export.xlsx?line=L2', hr)],
+			// An XLSX file is a zip archive: it starts with the local file header "PK\x03\x04".
+			looksRight: (body, type) => type.includes('spreadsheetml') && body.startsWith('PK')
 		}
-		// Records exports (HR): add their route here when they exist, e.g.
-		// { name: 'hr: training records export', connections: 1, requests: [get('/records/…', await cookieOf('hr'))], looksRight: … },
 	];
 }
 
