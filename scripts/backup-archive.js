@@ -231,9 +231,9 @@ export async function createBackup(cfg, { outFile, database = cfg.dbName, bucket
 			DUMP_FILE,
 			'objects'
 		]);
-		renameSync(partial, file);
 		// It holds password hashes and personal data: readable by its owner only.
-		chmodSync(file, 0o600);
+		chmodSync(partial, 0o600);
+		renameSync(partial, file);
 		return {
 			file,
 			bytes: statSync(file).size,
