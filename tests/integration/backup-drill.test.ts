@@ -167,7 +167,14 @@ describe('restore drill', () => {
 		const source = await verifyAuditChain(db);
 		const copy = await verifyAuditChain(restoredDb);
 		expect(source.ok).toBe(true);
-		expect(copy).toEqual({ ok: true, checked: source.checked, problems: [] });
+		expect(copy).toMatchObject({
+			ok: true,
+			checked: source.checked,
+			problems: [],
+			brokenAtSeq: null,
+			headSeq: source.headSeq,
+			headHash: source.headHash
+		});
 		expect(copy.checked).toBe(sourceCounts.audit_events);
 		const [srcHead] = await db.select().from(schema.auditChain);
 		const [copyHead] = await restoredDb.select().from(schema.auditChain);

@@ -57,7 +57,7 @@ beforeAll(async () => {
 	await (await fetch(`${app.url}/records`, { headers: { cookie } })).arrayBuffer();
 	for (const ext of ['csv', 'xlsx'])
 		await download(`${app.url}/records/export.${ext}?person=B-000001`, cookie);
-}, 120_000);
+}, 300_000);
 
 afterAll(async () => {
 	await app?.stop();

@@ -41,7 +41,6 @@ export const recordsFilterSchema = z
 
 export type RecordsFilterInput = z.infer<typeof recordsFilterSchema>;
 
-
 const reason = (what: string) =>
 	z
 		.string(`Say ${what}.`)
