@@ -38,26 +38,34 @@ let app: BuiltApp | null = null;
 let cookie = '';
 
 beforeAll(async () => {
+	const t0 = performance.now();
+	const phase = (what: string) =>
+		console.info(`setup: ${what} after ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 	const owner = ownerDb();
 	await owner.query(`DROP DATABASE IF EXISTS \`${name}\``);
 	await owner.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
 	await applyMigrations(scratchUrl);
+	phase('migrations');
 	const conn = await mysql.createConnection({ uri: scratchUrl, timezone: 'Z' });
 	try {
 		expect(await fillRecordsDataset(conn, PEOPLE)).toBe(ROWS);
 	} finally {
 		await conn.end();
 	}
+	phase(`${ROWS} rows`);
 	app = await startBuiltApp(Number(new URL(APP_URL).port) + 7, scratchUrl, {
 		...process.env,
 		NODE_OPTIONS: `--max-old-space-size=${HEAP_MIB}`
 	});
+	phase('server up');
 	cookie = await signIn(app.url, BENCH_HR_EMAIL, BENCH_HR_PASSWORD);
+	phase('signed in');
 	// Warm-up: load the page and every module an export uses, so the baseline includes them.
 	await (await fetch(`${app.url}/records`, { headers: { cookie } })).arrayBuffer();
 	for (const ext of ['csv', 'xlsx'])
 		await download(`${app.url}/records/export.${ext}?person=B-000001`, cookie);
-}, 300_000);
+	phase('warm-up exports');
+}, 120_000);
 
 afterAll(async () => {
 	await app?.stop();

@@ -136,7 +136,11 @@ export const checkAttempts = mysqlTable(
 		scorePct: decimal({ precision: 5, scale: 2, mode: 'number' }),
 		passed: boolean()
 	},
-	(t) => [index('check_attempts_person').on(t.personId, t.checkVersionId, t.startedAt)]
+	(t) => [
+		index('check_attempts_person').on(t.personId, t.checkVersionId, t.startedAt),
+		// The records export counts and picks attempts per person and process.
+		index('check_attempts_person_process').on(t.personId, t.processId, t.submittedAt)
+	]
 );
 
 /** The questions drawn for one attempt, their drawn parameters, key, response and grade. */

@@ -1,0 +1,1 @@
+CREATE INDEX `check_attempts_person_process` ON `check_attempts` (`person_id`,`process_id`,`submitted_at`);
