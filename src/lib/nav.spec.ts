@@ -20,7 +20,8 @@ describe('navigation', () => {
 		expect(admin?.items.map((i) => i.href)).toEqual([
 			'/admin/people',
 			'/admin/plant',
-			'/admin/api-keys'
+			'/admin/api-keys',
+			'/admin/mail'
 		]);
 		expect(navGroups(navFor(['operator'])).map((g) => g.group)).toEqual(['Daily work', 'Training']);
 	});

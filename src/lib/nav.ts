@@ -73,7 +73,8 @@ export const NAV: NavItem[] = [
 	},
 	{ href: '/admin/people', label: 'People', group: 'Plant set-up', roles: ['admin'] },
 	{ href: '/admin/plant', label: 'Plant', group: 'Plant set-up', roles: ['admin'] },
-	{ href: '/admin/api-keys', label: 'API keys', group: 'Plant set-up', roles: ['admin'] }
+	{ href: '/admin/api-keys', label: 'API keys', group: 'Plant set-up', roles: ['admin'] },
+	{ href: '/admin/mail', label: 'Mail outbox', group: 'Plant set-up', roles: ['admin'] }
 ];
 
 export function navFor(roles: readonly Role[]): NavItem[] {

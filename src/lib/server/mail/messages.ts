@@ -114,6 +114,6 @@ export async function messageFor(personId: number, id: number): Promise<MessageD
 				? null
 				: body.toAddress === ''
 					? body.lastError
-					: 'The mail server did not accept it after several tries. An admin can see the details.'
+					: 'The mail server did not accept it after several tries. An admin can see why under Plant set-up → Mail outbox and send it again.'
 	};
 }
