@@ -15,6 +15,10 @@ import {
 	type FormFields,
 	type HttpClient
 } from '../helpers/http-session';
+import {
+	createTestPerson as createFixturePerson,
+	makeInstruction
+} from '../helpers/instruction-fixtures';
 import { checkResponse, describeTally, newTally } from '../helpers/response-checks';
 import { pathMatcher, publicPattern, routeInventory } from '../helpers/route-inventory';
 
@@ -36,6 +40,8 @@ interface Ids {
 	supervisorId: number;
 	draft: { doc: string; letter: string };
 	review: { doc: string; letter: string };
+	/** An instruction with a revision in force, for the acknowledgement. */
+	effectiveDoc: string;
 	certificateId: number;
 	attemptId: number;
 }
@@ -90,7 +96,7 @@ function targets(ids: Ids, tag: string): Target[] {
 		{
 			label: 'operator: acknowledge (may issue a certificate)',
 			role: 'operator',
-			path: `/instructions/${ids.review.doc}/acknowledge`,
+			path: `/instructions/${ids.effectiveDoc}/acknowledge`,
 			fields: { confirm: 'true' },
 			tables: ['acknowledgements', 'certificates']
 		},
@@ -258,13 +264,15 @@ beforeAll(async () => {
 		"SELECT p.id FROM people p JOIN role_assignments r ON r.person_id = p.id WHERE r.role = 'trainer' AND p.active = 1 ORDER BY p.id LIMIT 1"
 	);
 	const station = await one<{ id: number }>("SELECT id FROM stations WHERE code = 'L2-FOG-03'");
-	const revisionIn = async (state: string) => {
-		const r = await one<{ doc: string; letter: string }>(
-			`SELECT i.doc_number AS doc, r.letter FROM revisions r JOIN instructions i ON i.id = r.instruction_id WHERE r.state = '${state}' ORDER BY r.id LIMIT 1`
-		);
-		// Without one, a well-formed address of none: the refusal comes before any look-up anyway.
-		return r ?? { doc: 'WI-NONE-999', letter: 'A' };
-	};
+	// A draft and a revision in review of an instruction of this file's own, walked through the
+	// real workflow, so the draft save and the publish name revisions in those states.
+	const author = await createFixturePerson(['trainer']);
+	const approver = await createFixturePerson(['quality']);
+	const draftFx = await makeInstruction(author, approver, [{ source: '# Sweep', stop: 'draft' }]);
+	const reviewFx = await makeInstruction(author, approver, [{ source: '# Sweep', stop: 'review' }]);
+	const effective = await one<{ doc: string }>(
+		"SELECT i.doc_number AS doc FROM revisions r JOIN instructions i ON i.id = r.instruction_id WHERE r.state = 'approved' AND r.effective_from <= NOW() ORDER BY r.id LIMIT 1"
+	);
 	const certificate = await one<{ id: number }>('SELECT id FROM certificates ORDER BY id LIMIT 1');
 	const attempt = await one<{ id: number }>(
 		"SELECT id FROM check_attempts ORDER BY state = 'open' DESC, id LIMIT 1"
@@ -273,8 +281,9 @@ beforeAll(async () => {
 		personId: person!.id,
 		supervisorId: supervisor!.id,
 		stationId: station!.id,
-		draft: await revisionIn('draft'),
-		review: await revisionIn('review'),
+		draft: { doc: draftFx.docNumber, letter: draftFx.letters[0] },
+		review: { doc: reviewFx.docNumber, letter: reviewFx.letters[0] },
+		effectiveDoc: effective!.doc,
 		certificateId: certificate?.id ?? 999999999,
 		attemptId: attempt?.id ?? 999999999
 	};
@@ -337,6 +346,7 @@ const PLACEHOLDER: Ids = {
 	supervisorId: 1,
 	draft: { doc: 'WI-X-1', letter: 'A' },
 	review: { doc: 'WI-X-1', letter: 'A' },
+	effectiveDoc: 'WI-X-1',
 	certificateId: 1,
 	attemptId: 1
 };
