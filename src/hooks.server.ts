@@ -1,4 +1,4 @@
-import { json, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
+import { json, text, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { randomUUID } from 'node:crypto';
 import { handle as authHandle } from '$lib/server/auth/authjs';
@@ -44,12 +44,14 @@ const user: Handle = async ({ event, resolve }) => {
 const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
 /**
- * SvelteKit checks Origin on form posts only. Cookie-authenticated JSON calls that change state get
- * the same check here; calls with an API key (no cookies involved) are left to the key check.
+ * SvelteKit checks Origin on form-encoded posts only (before any hook). A cookie-carrying request
+ * that changes state in any other encoding (JSON to the API, or to a form action, which SvelteKit
+ * would answer 415) gets the same check here; calls with an API key (no cookies involved) are left
+ * to the key check.
  */
-const apiOrigin: Handle = async ({ event, resolve }) => {
+const crossSite: Handle = async ({ event, resolve }) => {
 	const { request, url } = event;
-	if (url.pathname.startsWith('/api/') && UNSAFE.has(request.method)) {
+	if (UNSAFE.has(request.method)) {
 		const usesKey = /^bearer /i.test(request.headers.get('authorization') ?? '');
 		// Without cookies a request carries no ambient credentials, so there is nothing to forge;
 		// it is left to the endpoint's own 401.
@@ -59,15 +61,23 @@ const apiOrigin: Handle = async ({ event, resolve }) => {
 			const site = request.headers.get('sec-fetch-site');
 			const sameOrigin = origin ? origin === url.origin : site === 'same-origin';
 			if (!sameOrigin) {
-				return json({ error: 'Cross-site request refused.' }, { status: 403 });
+				const message = 'Cross-site request refused.';
+				return url.pathname.startsWith('/api/') ||
+					request.headers.get('accept')?.includes('application/json')
+					? json({ error: message }, { status: 403 })
+					: text(message, { status: 403 });
 			}
 		}
 	}
 	return resolve(event);
 };
 
+/**
+ * Outermost, so that every answer gets these headers: the pages and endpoints, and also what the
+ * auth hook (Auth.js's own /auth/* answers) and crossSite answer without resolving.
+ */
 const headers: Handle = async ({ event, resolve }) => {
-	const response = await resolve(event);
+	const response = mutable(await resolve(event));
 	const h = response.headers;
 	h.set('X-Content-Type-Options', 'nosniff');
 	h.set('Referrer-Policy', 'strict-origin-when-cross-origin');
@@ -93,7 +103,17 @@ const headers: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(authHandle, user, apiOrigin, headers);
+/** A response whose headers can be set (those of a fetched or `Response.redirect` one cannot). */
+function mutable(response: Response): Response {
+	try {
+		response.headers.set('X-Content-Type-Options', 'nosniff');
+		return response;
+	} catch {
+		return new Response(response.body, response);
+	}
+}
+
+export const handle = sequence(headers, authHandle, user, crossSite);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found' };

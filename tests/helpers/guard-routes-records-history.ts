@@ -15,5 +15,26 @@ export const GUARD_ROUTES: GuardRoute[] = [
 		allowedRoles: ['quality', 'hr']
 	},
 	// Everyone has their own records.
-	{ method: 'GET', path: '/my-records', allowedRoles: 'signed-in' }
+	{ method: 'GET', path: '/my-records', allowedRoles: 'signed-in' },
+
+	{ method: 'GET', path: '/my-records.json', allowedRoles: 'signed-in', kind: 'download' },
+	{ method: 'GET', path: '/my-records.pdf', allowedRoles: 'signed-in', kind: 'download' },
+	{
+		method: 'GET',
+		path: '/records/logs/gate-log.csv',
+		allowedRoles: ['quality', 'hr'],
+		kind: 'download'
+	},
+	{
+		method: 'GET',
+		path: '/records/people/{person}/history.json',
+		allowedRoles: ['hr', 'quality'],
+		kind: 'download'
+	},
+	{
+		method: 'GET',
+		path: '/records/people/{person}/history.pdf',
+		allowedRoles: ['hr', 'quality'],
+		kind: 'download'
+	}
 ];

@@ -92,5 +92,16 @@ export const GUARD_ROUTES: GuardRoute[] = [
 		allowed: { status: 303, location: '/' },
 		signedOut: { status: 303, location: '/' }
 	},
-	{ method: 'GET', path: '/api/health', allowedRoles: 'public', kind: 'api' }
+	{ method: 'GET', path: '/api/health', allowedRoles: 'public', kind: 'api' },
+
+	// Sign-in posts with nothing filled in: the field errors when signed out (no attempt is
+	// counted); someone signed in is sent home by the page's load, which runs after the action.
+	...(['password', 'badge'] as const).map((action): GuardRoute => ({
+		method: 'POST',
+		path: `/signin?/${action}`,
+		allowedRoles: 'public',
+		form: { redirectTo: '/' },
+		allowed: { status: 303, location: '/' },
+		signedOut: { status: 400 }
+	}))
 ];

@@ -1,25 +1,22 @@
 // The guard matrix: every route in the table × every kind of visitor → exactly the expected answer.
 // Allowed: 200 (or the row's own answer). Signed in but not allowed: 403 with the helpful page (or
-// JSON for APIs). Signed out: a 303 to sign-in that comes back (or 401 JSON for APIs).
+// JSON for APIs). Signed out: a 303 to sign-in that comes back (or 401 JSON for APIs). Every answer,
+// whatever its status, also carries the security headers and safe cookies and leaks no trace or SQL
+// (tests/helpers/response-checks.ts). The rows: tests/helpers/guard-table.ts.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROLES, type Role } from '../../src/lib/roles';
 import { closeDbHelpers, createTestPerson, retireTestPeople } from '../helpers/db';
-import { GUARD_ROUTES, type GuardRoute } from '../helpers/guard-routes';
+import type { GuardRoute } from '../helpers/guard-routes';
+import { GUARD_TABLE } from '../helpers/guard-table';
 import {
 	newClient,
 	signInAsDemo,
 	signInWithPassword,
 	type HttpClient
 } from '../helpers/http-session';
+import { checkResponse, describeTally, newTally } from '../helpers/response-checks';
 
-// Rows other areas add in their own `guard-routes-<area>.ts` files.
-const extraTables = import.meta.glob<{ GUARD_ROUTES: GuardRoute[] }>(
-	'../helpers/guard-routes-*.ts',
-	{
-		eager: true
-	}
-);
-const ROUTES = [...GUARD_ROUTES, ...Object.values(extraTables).flatMap((m) => m.GUARD_ROUTES)];
+const ROUTES = GUARD_TABLE;
 
 interface Visitor {
 	label: string;
@@ -36,6 +33,7 @@ const VISITORS: Visitor[] = [
 
 const clients = new Map<string, HttpClient>();
 let personId = 0;
+const tally = newTally();
 
 beforeAll(async () => {
 	// The person the `{person}` rows are about: nobody above signs in as them.
@@ -51,6 +49,9 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+	console.info(
+		describeTally(`guard matrix: ${ROUTES.length} routes × ${VISITORS.length} visitors`, tally)
+	);
 	await retireTestPeople();
 	await closeDbHelpers();
 });
@@ -86,6 +87,7 @@ describe.each(ROUTES.map((r) => [`${r.method} ${r.path} (${describeRoles(r)})`, 
 			const body = await res.text();
 			const where = `${route.method} ${path} as ${visitor.label}`;
 			const location = res.headers.get('location');
+			checkResponse(res, body, where, !!visitor.roles, tally);
 
 			if (isAllowed(route, visitor.roles)) {
 				const want = (visitor.roles ? route.allowed : route.signedOut) ?? { status: 200 };

@@ -4,21 +4,16 @@ import { describe, expect, it, vi } from 'vitest';
 import { appDb, createTestPerson, queryRows } from '../helpers/db';
 import { APP_URL, newClient, postPasswordSignIn, SESSION_COOKIE } from '../helpers/http-session';
 import { useDemoSession } from '../helpers/lifecycle';
+import { cspDirectives } from '../helpers/response-checks';
 
 const EVIL = 'https://evil.example';
 const admin = useDemoSession('admin');
 
-/** The directives of a Content-Security-Policy header, by name. */
+/** The directives of a response's Content-Security-Policy header, by name. */
 function csp(res: Response): Map<string, string[]> {
 	const header = res.headers.get('content-security-policy');
 	expect(header, 'Content-Security-Policy header').toBeTruthy();
-	return new Map(
-		header!
-			.split(';')
-			.map((d) => d.trim().split(/\s+/))
-			.filter((parts) => parts[0])
-			.map(([name, ...values]) => [name, values])
-	);
+	return cspDirectives(header!);
 }
 
 function expectCommonHeaders(res: Response) {
@@ -87,6 +82,16 @@ describe('security headers', () => {
 	});
 });
 
+describe('Auth.js answers', () => {
+	it('carry the security headers too', async () => {
+		const res = await newClient().get('/auth/providers', {
+			headers: { accept: 'application/json' }
+		});
+		await res.body?.cancel();
+		expectCommonHeaders(res);
+	});
+});
+
 describe('the session cookie', () => {
 	it('is HttpOnly and SameSite=Lax, for the whole site', async () => {
 		const p = await createTestPerson({ roles: ['operator'] });
@@ -140,6 +145,18 @@ describe('cross-site requests', () => {
 		expect(res.status).toBe(403);
 		expect(res.headers.get('content-type')).toContain('application/json');
 		expect(await res.json()).toEqual({ error: 'Cross-site request refused.' });
+		// The refusal is answered by a hook without resolving; the headers hook still covers it.
+		expectCommonHeaders(res);
+		expect(res.headers.get('cache-control')).toBe('no-store');
+	});
+
+	it('refuses JSON posted to a form action from another origin (SvelteKit checks forms only)', async () => {
+		const res = await admin.client.post('/admin/people/new?/save', '{"displayName":"x"}', {
+			headers: { origin: EVIL, 'content-type': 'application/json' }
+		});
+		expect(res.status).toBe(403);
+		expect(await res.text()).toBe('Cross-site request refused.');
+		expectCommonHeaders(res);
 	});
 
 	it('refuses it without an Origin header when the browser says it is cross-site', async () => {
