@@ -103,6 +103,20 @@ const headers: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
+/**
+ * Cookies are Secure exactly when the site is served over https. SvelteKit makes a cookie Secure
+ * whenever the caller does not say (except on localhost), and Auth.js's session refresh does not
+ * say: on a plant network served over plain http the browser would drop every refreshed session
+ * cookie, so sessions would end at their first expiry however busy the person is.
+ */
+const cookieDefaults: Handle = async ({ event, resolve }) => {
+	const secure = event.url.protocol === 'https:';
+	const set = event.cookies.set.bind(event.cookies);
+	event.cookies.set = (name, value, options) =>
+		set(name, value, { ...options, secure: options.secure ?? secure });
+	return resolve(event);
+};
+
 /** A response whose headers can be set (those of a fetched or `Response.redirect` one cannot). */
 function mutable(response: Response): Response {
 	try {
@@ -113,7 +127,7 @@ function mutable(response: Response): Response {
 	}
 }
 
-export const handle = sequence(headers, authHandle, user, crossSite);
+export const handle = sequence(headers, cookieDefaults, authHandle, user, crossSite);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found' };

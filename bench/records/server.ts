@@ -33,7 +33,9 @@ export interface BuiltApp {
 export async function startBuiltApp(
 	port: number,
 	databaseUrl: string,
-	env: Record<string, string | undefined>
+	env: Record<string, string | undefined>,
+	/** The site's public address (ORIGIN); the server still listens on 127.0.0.1. */
+	origin?: string
 ): Promise<BuiltApp> {
 	const url = `http://127.0.0.1:${port}`;
 	const child: ChildProcess = spawn(process.execPath, [join(root, 'build')], {
@@ -43,7 +45,7 @@ export async function startBuiltApp(
 			NODE_ENV: 'production',
 			HOST: '127.0.0.1',
 			PORT: String(port),
-			ORIGIN: url,
+			ORIGIN: origin ?? url,
 			DATABASE_URL: databaseUrl,
 			PADBRIDGE_JOBS: 'off'
 		},

@@ -18,9 +18,9 @@ export const LEAK_PATTERNS: { name: string; re: RegExp }[] = [
 ];
 
 /**
- * Cookies over https must be Secure: Auth.js (useSecureCookies) and the kiosk cookie decide by the
- * protocol. Over plain http SvelteKit's own default adds Secure to cookies set through
- * `event.cookies` on any host but localhost, so there it is allowed, not required.
+ * Cookies are Secure exactly when the site is served over https (the cookieDefaults hook; Auth.js
+ * and the kiosk cookie decide by the protocol too). Over plain http a Secure cookie would be
+ * dropped by the browser, so there it must not be Secure.
  */
 const SECURE_COOKIES = new URL(APP_URL).protocol === 'https:';
 
@@ -104,6 +104,7 @@ export function checkResponse(
 		soft(names, `cookie ${name} SameSite`).toContain('samesite');
 		soft(names, `cookie ${name} Path`).toContain('path');
 		if (SECURE_COOKIES) soft(names, `cookie ${name} Secure`).toContain('secure');
+		else soft(names, `cookie ${name} not Secure over http`).not.toContain('secure');
 		tally.cookies++;
 	}
 
