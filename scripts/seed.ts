@@ -23,6 +23,7 @@ import { seedChecklists } from './seed-signoffs';
 import { seedRulesAndAssignments } from './seed-rules';
 import { seedCertificates } from './seed-certificates';
 import { seedRecords } from './seed-records';
+import { seedMail } from './seed-mail';
 
 const DEMO_PIN = DEMO_ACCOUNTS.find((a) => a.role === 'operator')!.pin!;
 
@@ -289,6 +290,7 @@ async function main() {
 	await seedInstructions();
 	await seedTraining();
 	await seedRecords();
+	await seedMail();
 }
 
 /** Knowledge checks, checklists, certification rules and assignments, then the certificate history. */

@@ -31,7 +31,8 @@ test('an operator finds the help pages from the main menu', async ({ page }, tes
 		'Safety notes for bonding work',
 		'Shop-floor terminals, keyboard and badge scanner',
 		'Training histories, my records, gate log and audit trail exports',
-		'Retention, legal holds and leavers'
+		'Retention, legal holds and leavers',
+		'Notices by e-mail and the mail outbox'
 	]) {
 		await expect(page.getByRole('link', { name: new RegExp(title) })).toBeVisible();
 	}

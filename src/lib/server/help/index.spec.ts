@@ -14,7 +14,8 @@ describe('help pages', () => {
 			'station-gate',
 			'records',
 			'history-and-logs',
-			'retention'
+			'retention',
+			'mail'
 		]);
 		for (const page of pages) {
 			expect(page.title.length).toBeGreaterThan(5);
