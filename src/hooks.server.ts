@@ -7,6 +7,7 @@ import { ensureBootstrapAdmin } from '$lib/server/people';
 import { startScheduler, stopScheduler } from '$lib/server/jobs/scheduler';
 import { pool } from '$lib/server/db';
 import { config } from '$lib/server/config';
+import { invalidUtf8Fields } from '$lib/server/api';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
@@ -66,6 +67,42 @@ const apiOrigin: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
+/**
+ * Form and JSON bodies must be UTF-8: the parsers would turn other bytes into U+FFFD without a
+ * word and the text would be stored other than it was sent. Refused before any action runs.
+ */
+const bodyEncoding: Handle = async ({ event, resolve }) => {
+	const { request } = event;
+	const type = request.headers.get('content-type') ?? '';
+	const kind = /^application\/x-www-form-urlencoded\b/i.test(type)
+		? 'form'
+		: /^application\/json\b/i.test(type)
+			? 'json'
+			: null;
+	if (!kind || !UNSAFE.has(request.method)) return resolve(event);
+	// A body that cannot be read (too large, cut off) is left to the route's own answer.
+	const bytes = await request
+		.clone()
+		.arrayBuffer()
+		.then((b) => new Uint8Array(b))
+		.catch(() => null);
+	const bad = bytes && invalidUtf8Fields(bytes, kind);
+	if (!bad) return resolve(event);
+	const text = `The ${bad.includes('_') ? 'request' : bad.join(', ')} was not sent as UTF-8 text; nothing was saved.`;
+	const wantsJson =
+		kind === 'json' ||
+		event.url.pathname.startsWith('/api/') ||
+		/application\/json/i.test(request.headers.get('accept') ?? '');
+	if (wantsJson) {
+		const fields = Object.fromEntries(bad.map((f) => [f, 'Not valid UTF-8 text.']));
+		return json({ error: text, fields }, { status: 400 });
+	}
+	return new Response(text, {
+		status: 400,
+		headers: { 'content-type': 'text/plain; charset=utf-8' }
+	});
+};
+
 const headers: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);
 	const h = response.headers;
@@ -93,7 +130,7 @@ const headers: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(authHandle, user, apiOrigin, headers);
+export const handle = sequence(authHandle, user, apiOrigin, headers, bodyEncoding);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found' };
