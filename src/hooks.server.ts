@@ -80,27 +80,31 @@ const bodyEncoding: Handle = async ({ event, resolve }) => {
 			? 'json'
 			: null;
 	if (!kind || !UNSAFE.has(request.method)) return resolve(event);
-	// A body that cannot be read (too large, cut off) is left to the route's own answer.
-	const bytes = await request
-		.clone()
-		.arrayBuffer()
-		.then((b) => new Uint8Array(b))
-		.catch(() => null);
-	const bad = bytes && invalidUtf8Fields(bytes, kind);
-	if (!bad) return resolve(event);
-	const text = `The ${bad.includes('_') ? 'request' : bad.join(', ')} was not sent as UTF-8 text; nothing was saved.`;
 	const wantsJson =
 		kind === 'json' ||
 		event.url.pathname.startsWith('/api/') ||
 		/application\/json/i.test(request.headers.get('accept') ?? '');
-	if (wantsJson) {
-		const fields = Object.fromEntries(bad.map((f) => [f, 'Not valid UTF-8 text.']));
-		return json({ error: text, fields }, { status: 400 });
+	const refuse = (status: 400 | 413, text: string, fields: Record<string, string>) =>
+		wantsJson
+			? json({ error: text, fields }, { status })
+			: new Response(text, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+	let bytes: Uint8Array | null = null;
+	try {
+		bytes = new Uint8Array(await request.clone().arrayBuffer());
+	} catch (err) {
+		// Over BODY_SIZE_LIMIT: adapter-node's reader throws a 413, which a form action would
+		// otherwise see as an empty form and answer with "required" errors.
+		const e = err as { status?: number; cause?: { status?: number } };
+		if (e?.status === 413 || e?.cause?.status === 413) {
+			return refuse(413, 'The request is larger than the server accepts; nothing was saved.', {});
+		}
+		// Anything else (a body cut off) is left to the route's own answer.
+		return resolve(event);
 	}
-	return new Response(text, {
-		status: 400,
-		headers: { 'content-type': 'text/plain; charset=utf-8' }
-	});
+	const bad = invalidUtf8Fields(bytes, kind);
+	if (!bad) return resolve(event);
+	const text = `The ${bad.includes('_') ? 'request' : bad.join(', ')} was not sent as UTF-8 text; nothing was saved.`;
+	return refuse(400, text, Object.fromEntries(bad.map((f) => [f, 'Not valid UTF-8 text.'])));
 };
 
 const headers: Handle = async ({ event, resolve }) => {

@@ -426,6 +426,22 @@ describe('calculators API', () => {
 	});
 });
 
+describe('body size', () => {
+	it('a body over the server-wide limit (BODY_SIZE_LIMIT, 30 MB in the start scripts) gets 413', async () => {
+		const huge = new Uint8Array(31 * 1024 * 1024).fill(0x61);
+		for (const [path, type] of [
+			['/api/v1/calculators/bond-force', 'application/json'],
+			['/admin/people/new?/save', 'application/x-www-form-urlencoded']
+		]) {
+			count(`POST ${path} (31 MB)`);
+			const res = await admin.post(path, huge, { headers: { 'content-type': type } });
+			const text = await res.text();
+			expect(res.status, `${path}: ${text.slice(0, 200)}`).toBe(413);
+			expect(text).not.toMatch(STACK);
+		}
+	});
+});
+
 describe('station gate API', () => {
 	const path = '/api/v1/gate/checks';
 	const headers = { ...JSON_HEADERS, authorization: '' };
