@@ -553,6 +553,25 @@ describe('routes about the signed-in person take no id', () => {
 		expect(after.state).toBe('open');
 	});
 
+	it('an attempt still open is its owner’s alone: trainers and quality get 404 until it is submitted', async () => {
+		for (const who of ['trainerOther', 'quality', 'opA'] as const) {
+			for (const [path, accept] of [
+				[`/training/attempts/${fx.openAttemptB}`, 'text/html'],
+				[`/api/v1/attempts/${fx.openAttemptB}`, 'application/json']
+			]) {
+				requests++;
+				const res = await clients[who].get(path, { headers: { accept } });
+				const text = await res.text();
+				expect(res.status, `${who} ${path}`).toBe(404);
+				for (const s of secrets) expect(text, `${who} ${path}`).not.toContain(s);
+			}
+		}
+		requests++;
+		const own = await clients.opB.get(`/training/attempts/${fx.openAttemptB}`);
+		await own.body?.cancel();
+		expect(own.status).toBe(200);
+	});
+
 	it("operator A's lists never show B's certificates, attempts, sign-offs or messages", async () => {
 		for (const path of ['/certificates', '/messages', '/my-signoffs', '/training/checks', '/']) {
 			requests++;
