@@ -7,6 +7,7 @@ import { ensureBootstrapAdmin } from '$lib/server/people';
 import { startScheduler, stopScheduler } from '$lib/server/jobs/scheduler';
 import { pool } from '$lib/server/db';
 import { config } from '$lib/server/config';
+import { invalidUtf8Fields } from '$lib/server/api';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
@@ -73,6 +74,46 @@ const crossSite: Handle = async ({ event, resolve }) => {
 };
 
 /**
+ * Form and JSON bodies must be UTF-8: the parsers would turn other bytes into U+FFFD without a
+ * word and the text would be stored other than it was sent. Refused before any action runs.
+ */
+const bodyEncoding: Handle = async ({ event, resolve }) => {
+	const { request } = event;
+	const type = request.headers.get('content-type') ?? '';
+	const kind = /^application\/x-www-form-urlencoded\b/i.test(type)
+		? 'form'
+		: /^application\/json\b/i.test(type)
+			? 'json'
+			: null;
+	if (!kind || !UNSAFE.has(request.method)) return resolve(event);
+	const wantsJson =
+		kind === 'json' ||
+		event.url.pathname.startsWith('/api/') ||
+		/application\/json/i.test(request.headers.get('accept') ?? '');
+	const refuse = (status: 400 | 413, text: string, fields: Record<string, string>) =>
+		wantsJson
+			? json({ error: text, fields }, { status })
+			: new Response(text, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+	let bytes: Uint8Array | null = null;
+	try {
+		bytes = new Uint8Array(await request.clone().arrayBuffer());
+	} catch (err) {
+		// Over BODY_SIZE_LIMIT: adapter-node's reader throws a 413, which a form action would
+		// otherwise see as an empty form and answer with "required" errors.
+		const e = err as { status?: number; cause?: { status?: number } };
+		if (e?.status === 413 || e?.cause?.status === 413) {
+			return refuse(413, 'The request is larger than the server accepts; nothing was saved.', {});
+		}
+		// Anything else (a body cut off) is left to the route's own answer.
+		return resolve(event);
+	}
+	const bad = invalidUtf8Fields(bytes, kind);
+	if (!bad) return resolve(event);
+	const text = `The ${bad.includes('_') ? 'request' : bad.join(', ')} was not sent as UTF-8 text; nothing was saved.`;
+	return refuse(400, text, Object.fromEntries(bad.map((f) => [f, 'Not valid UTF-8 text.'])));
+};
+
+/**
  * Outermost, so that every answer gets these headers: the pages and endpoints, and also what the
  * auth hook (Auth.js's own /auth/* answers) and crossSite answer without resolving.
  */
@@ -127,7 +168,7 @@ function mutable(response: Response): Response {
 	}
 }
 
-export const handle = sequence(headers, cookieDefaults, authHandle, user, crossSite);
+export const handle = sequence(headers, cookieDefaults, authHandle, user, crossSite, bodyEncoding);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found' };

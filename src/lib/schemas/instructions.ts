@@ -49,13 +49,29 @@ export const rejectSchema = z.object({
 
 export const commentSchema = rejectSchema;
 
+// NUL and unpaired UTF-16 surrogates (possible in JSON as "\ud800") cannot be stored as sent:
+// the database or the encoder would change them, so the text is refused instead.
+// eslint-disable-next-line no-control-regex
+const UNSTORABLE = /[\u0000\p{Cs}]/u;
+
+const sourceText = z
+	.string()
+	.max(MAX_SOURCE, `The text may be at most ${MAX_SOURCE} characters.`)
+	.refine(
+		(s) => !UNSTORABLE.test(s),
+		'The text contains a NUL character or a broken character (an unpaired surrogate).'
+	);
+
+/** A JSON body carrying a whole instruction text: up to 4 bytes a character, and some room. */
+export const DRAFT_BODY_MAX_BYTES = MAX_SOURCE * 4 + 64 * 1024;
+
 export const draftSaveSchema = z.object({
-	source: z.string().max(MAX_SOURCE, `The text may be at most ${MAX_SOURCE} characters.`),
+	source: sourceText,
 	version: z.number().int().positive()
 });
 
 export const previewSchema = z.object({
-	source: z.string().max(MAX_SOURCE),
+	source: sourceText,
 	docNumber: z.string().regex(DOC_NUMBER_RE).optional(),
 	letter: z
 		.string()

@@ -41,12 +41,17 @@ export const recordsFilterSchema = z
 
 export type RecordsFilterInput = z.infer<typeof recordsFilterSchema>;
 
+// Control characters other than tab and newlines (NUL above all) have no place in a reason.
+// eslint-disable-next-line no-control-regex
+const CONTROL = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/;
+
 const reason = (what: string) =>
 	z
 		.string(`Say ${what}.`)
 		.trim()
 		.min(3, `Say ${what} (at least 3 characters).`)
-		.max(500, 'Keep it under 500 characters.');
+		.max(500, 'Keep it under 500 characters.')
+		.refine((s) => !CONTROL.test(s), 'The text contains control characters.');
 
 const years = (type: keyof typeof RETENTION_YEAR_BOUNDS) => {
 	const { min, max } = RETENTION_YEAR_BOUNDS[type];

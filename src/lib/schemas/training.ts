@@ -15,14 +15,19 @@ const optionalId = z.coerce.number().int().positive().nullable().default(null);
 
 /** The shortest span, in days, that `months` calendar months can cover (February counts 28). */
 export function shortestMonthsDays(months: number): number {
+	if (!Number.isFinite(months) || months < 0) return Infinity;
 	const lengths = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+	// Whole years are 365 days from any start; only the remaining months depend on it. (A loop
+	// over every month let one posted "99999999999999999999" hold the server for good.)
+	const years = Math.floor(months / 12);
+	const rest = Math.floor(months) % 12;
 	let best = Infinity;
 	for (let start = 0; start < 12; start++) {
 		let days = 0;
-		for (let i = 0; i < months; i++) days += lengths[(start + i) % 12];
+		for (let i = 0; i < rest; i++) days += lengths[(start + i) % 12];
 		best = Math.min(best, days);
 	}
-	return best;
+	return years * 365 + best;
 }
 
 /**
@@ -44,7 +49,7 @@ export function parseReminderDays(text: string, validityMonths: number): number[
 	for (let i = 1; i < days.length; i++) {
 		if (days[i] >= days[i - 1]) return 'List the days from the largest to the smallest, e.g. 30, 7';
 	}
-	const limit = shortestMonthsDays(validityMonths);
+	const limit = Number.isInteger(validityMonths) ? shortestMonthsDays(validityMonths) : Infinity;
 	if (Number.isInteger(validityMonths) && validityMonths >= 1 && days[0] >= limit) {
 		return `Each reminder must come before the certificate is issued: less than ${limit} days for ${validityMonths} month${validityMonths === 1 ? '' : 's'}`;
 	}

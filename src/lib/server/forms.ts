@@ -1,7 +1,14 @@
 /* eslint-disable @typescript-eslint/no-explicit-any -- field names of a Refusal are known only at run time */
 // Turning a Refusal from a domain function into a superforms answer that keeps the input.
 import { fail } from '@sveltejs/kit';
-import { message, setError, type SuperValidated } from 'sveltekit-superforms';
+import {
+	message,
+	setError,
+	superValidate,
+	type SuperValidated,
+	type SuperValidateOptions
+} from 'sveltekit-superforms';
+import type { ValidationAdapter } from 'sveltekit-superforms/adapters';
 import { Refusal } from './errors';
 
 /**
@@ -40,4 +47,38 @@ export function refusalToForm<T extends Record<string, unknown>>(
 		setError(form, path as never, msg, { status });
 	}
 	return fail(status, { form });
+}
+
+// Plain decimal digits, as a number input sends them ("10", "-3", "80.5").
+const PLAIN_NUMBER = /^\s*-?\d+(\.\d+)?\s*$/;
+
+/**
+ * superValidate for a posted form that refuses numbers read loosely. superforms parses integer
+ * fields with parseInt, so "1e309" would be stored as 1 and "10 years" as 10; a number field whose
+ * posted text is not plain digits gets an error on that field instead.
+ */
+export async function superValidatePosted<
+	Out extends Record<string, unknown>,
+	M = any,
+	In extends Record<string, unknown> = Out
+>(
+	request: Request,
+	adapter: ValidationAdapter<Out, In>,
+	options?: SuperValidateOptions<Out>
+): Promise<SuperValidated<Out, M, In>> {
+	const data = await request.formData();
+	const form = await superValidate<Out, M, In>(data, adapter, options);
+	for (const [key, value] of Object.entries(form.data)) {
+		if (typeof value !== 'number') continue;
+		const raw = data.get(key);
+		// parseInt("1.5") is 1: the number kept must be the number typed.
+		if (
+			typeof raw === 'string' &&
+			raw.trim() !== '' &&
+			(!PLAIN_NUMBER.test(raw) || Number(raw) !== value || Object.is(value, -0))
+		) {
+			setError(form as any, key as any, 'Enter the number in plain digits, like 10.');
+		}
+	}
+	return form;
 }

@@ -4,7 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import { Refusal } from '$lib/server/errors';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import { getRetentionRules, setRetentionRules } from '$lib/server/records/retention-rules';
 import {
 	listLegalHolds,
@@ -57,7 +57,9 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	rules: async (event) => {
 		const user = requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(retentionRulesSchema), { id: 'rules' });
+		const form = await superValidatePosted(event.request, zod4(retentionRulesSchema), {
+			id: 'rules'
+		});
 		if (!form.valid) return fail(400, { rulesForm: form });
 		const changed = await setRetentionRules({ ...actorFrom(event), id: user.id }, form.data);
 		form.data.reason = '';

@@ -3,7 +3,7 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refusalToForm } from '$lib/server/forms';
+import { refusalToForm, superValidatePosted } from '$lib/server/forms';
 import {
 	createRuleVersion,
 	nextVersionDefaults,
@@ -38,7 +38,7 @@ export const actions: Actions = {
 		const user = requireRole(event, 'quality');
 		const process = await processByCode(event.params.process);
 		if (!process) error(404, { message: 'No such process' });
-		const form = await superValidate(event.request, zod4(ruleSchema));
+		const form = await superValidatePosted(event.request, zod4(ruleSchema));
 		if (!form.valid) return fail(400, { form });
 		let version: number;
 		try {

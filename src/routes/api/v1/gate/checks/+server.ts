@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { verifyApiKey } from '$lib/server/apikeys';
 import { checkStationAccess, withTimeout } from '$lib/server/gate';
 import { config } from '$lib/server/config';
-import { fieldErrors, readJson } from '$lib/server/api';
+import { bodyRefusal, fieldErrors, readJson } from '$lib/server/api';
 import { gateCheckSchema } from '$lib/schemas/gate';
 import type { RequestHandler } from './$types';
 
@@ -34,7 +34,7 @@ export const POST: RequestHandler = async (event) => {
 			return json(UNAVAILABLE, { status: 503 });
 		}
 		if (!key) return noKey();
-		if (!body.ok) return json({ error: body.error }, { status: body.status });
+		if (!body.ok) return bodyRefusal(body);
 		return json(
 			{ error: 'Check the request fields.', fields: fieldErrors(parsed!.error) },
 			{ status: 400 }

@@ -7,14 +7,21 @@ import {
 	renderRevision
 } from '$lib/server/instructions';
 import { renderInstruction } from '$lib/markdown/render';
-import { previewSchema } from '$lib/schemas/instructions';
+import { DRAFT_BODY_MAX_BYTES, previewSchema } from '$lib/schemas/instructions';
+import { bodyRefusal, fieldErrors, readJson } from '$lib/server/api';
 import type { RequestHandler } from './$types';
 
 /** Renders draft Markdown with the same server renderer the point of use uses. */
 export const POST: RequestHandler = async (event) => {
 	requireApiRole(event, ...AUTHOR_ROLES);
-	const parsed = previewSchema.safeParse(await event.request.json().catch(() => null));
-	if (!parsed.success) return json({ error: 'Send { source } as JSON.' }, { status: 400 });
+	const body = await readJson(event.request, { maxBytes: DRAFT_BODY_MAX_BYTES });
+	if (!body.ok) return bodyRefusal(body);
+	const parsed = previewSchema.safeParse(body.value);
+	if (!parsed.success)
+		return json(
+			{ error: 'Send { source } as JSON.', fields: fieldErrors(parsed.error) },
+			{ status: 400 }
+		);
 	const { source, docNumber, letter } = parsed.data;
 	if (docNumber && letter) {
 		const instruction = await findInstruction(docNumber);

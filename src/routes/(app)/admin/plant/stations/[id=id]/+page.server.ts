@@ -1,6 +1,7 @@
 import { error, fail } from '@sveltejs/kit';
 import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
+import { superValidatePosted } from '$lib/server/forms';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import { getStation, stationFormChoices, updateStation } from '$lib/server/plant';
@@ -26,7 +27,7 @@ export const actions: Actions = {
 		const admin = requireRole(event, 'admin');
 		const station = await getStation(Number(event.params.id), admin.siteId);
 		if (!station) error(404, { message: 'No such station' });
-		const form = await superValidate(event.request, zod4(stationSchema));
+		const form = await superValidatePosted(event.request, zod4(stationSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			const changed = await updateStation(actorFrom(event), station.id, form.data, admin.siteId);

@@ -1,6 +1,7 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
+import { superValidatePosted } from '$lib/server/forms';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
 import { createStation, stationFormChoices } from '$lib/server/plant';
@@ -20,7 +21,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	save: async (event) => {
 		const admin = requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(stationSchema));
+		const form = await superValidatePosted(event.request, zod4(stationSchema));
 		if (!form.valid) return fail(400, { form });
 		let id: number;
 		try {

@@ -1,6 +1,7 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
+import { superValidatePosted } from '$lib/server/forms';
 import { z } from 'zod';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
@@ -66,7 +67,7 @@ export const actions: Actions = {
 	settings: async (event) => {
 		const user = requireRole(event, ...CHECK_AUTHOR_ROLES);
 		const { version } = await versionOf(event);
-		const form = await superValidate(event.request, zod4(versionSettingsSchema), {
+		const form = await superValidatePosted(event.request, zod4(versionSettingsSchema), {
 			id: 'settings'
 		});
 		if (!form.valid) return fail(400, { settingsForm: form });

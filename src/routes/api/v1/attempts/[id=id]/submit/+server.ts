@@ -4,6 +4,7 @@ import { requireApiRole } from '$lib/server/auth/guards';
 import { apiRefusal } from '$lib/server/errors';
 import { submitAttempt } from '$lib/server/training/checks';
 import { answersJsonSchema } from '$lib/schemas/checks';
+import { bodyRefusal, fieldErrors, readJson } from '$lib/server/api';
 import type { RequestHandler } from './$types';
 
 /**
@@ -12,12 +13,14 @@ import type { RequestHandler } from './$types';
  */
 export const POST: RequestHandler = async (event) => {
 	const user = requireApiRole(event);
-	const parsed = answersJsonSchema.safeParse(await event.request.json().catch(() => null));
+	const body = await readJson(event.request);
+	if (!body.ok) return bodyRefusal(body);
+	const parsed = answersJsonSchema.safeParse(body.value);
 	if (!parsed.success)
 		return json(
 			{
 				error: 'Send { answers: { "<position>": answer } } as JSON.',
-				fields: Object.fromEntries(parsed.error.issues.map((i) => [i.path.join('.'), i.message]))
+				fields: fieldErrors(parsed.error)
 			},
 			{ status: 400 }
 		);

@@ -7,19 +7,19 @@ import {
 	resolveRevisionForViewer,
 	saveDraft
 } from '$lib/server/instructions';
-import { draftSaveSchema } from '$lib/schemas/instructions';
+import { DRAFT_BODY_MAX_BYTES, draftSaveSchema } from '$lib/schemas/instructions';
+import { bodyRefusal, fieldErrors, readJson } from '$lib/server/api';
 import type { RequestHandler } from './$types';
 
 /** Autosave: `{ source, version }` → `{ version }`, or 409 with the text saved in between. */
 export const POST: RequestHandler = async (event) => {
 	const user = requireApiRole(event, ...AUTHOR_ROLES);
-	const parsed = draftSaveSchema.safeParse(await event.request.json().catch(() => null));
+	const body = await readJson(event.request, { maxBytes: DRAFT_BODY_MAX_BYTES });
+	if (!body.ok) return bodyRefusal(body);
+	const parsed = draftSaveSchema.safeParse(body.value);
 	if (!parsed.success)
 		return json(
-			{
-				error: 'Send { source, version } as JSON.',
-				fields: Object.fromEntries(parsed.error.issues.map((i) => [i.path.join('.'), i.message]))
-			},
+			{ error: 'Send { source, version } as JSON.', fields: fieldErrors(parsed.error) },
 			{ status: 400 }
 		);
 	try {
