@@ -104,12 +104,12 @@ export const GUARD_ROUTES: GuardRoute[] = [
 		allowed: { status: 404 }
 	},
 	{
-		// The body is read before the attempt: a form body is refused as not JSON.
+		// The body is read before the attempt: a form body is refused as not JSON (415).
 		method: 'POST',
 		path: '/api/v1/attempts/999999999/submit',
 		allowedRoles: 'signed-in',
 		kind: 'api',
 		form: { x: '1' },
-		allowed: { status: 400 }
+		allowed: { status: 415 }
 	}
 ];

@@ -98,23 +98,29 @@ export const GUARD_ROUTES: GuardRoute[] = [
 		kind: 'api',
 		allowed: { status: 404 }
 	},
-	// The body is checked before the revision is looked up: a form without the fields is a 400.
-	...(['draft', 'files'] as const).map((what): GuardRoute => ({
+	// The body is checked before the revision is looked up: the draft wants JSON, so a form body is
+	// a 415; the files endpoint takes a form, and one without the file is a 400.
+	...(
+		[
+			['draft', 415],
+			['files', 400]
+		] as const
+	).map(([what, status]): GuardRoute => ({
 		method: 'POST',
 		path: `/api/v1${DOC}/revisions/A/${what}`,
 		allowedRoles: ['trainer', 'quality'],
 		kind: 'api',
 		form: { source: '' },
-		allowed: { status: 400 }
+		allowed: { status }
 	})),
 	{
-		// A form body, not the JSON the preview wants: refused with the field message.
+		// A form body, not the JSON the preview wants: 415, saying what to send.
 		method: 'POST',
 		path: '/api/v1/instructions/preview',
 		allowedRoles: ['trainer', 'quality'],
 		kind: 'api',
 		form: { source: '' },
-		allowed: { status: 400 }
+		allowed: { status: 415 }
 	},
 	{ method: 'GET', path: '/api/v1/search?q=bond', allowedRoles: 'signed-in', kind: 'api' }
 ];
