@@ -153,6 +153,17 @@ describe('the mail outbox page', () => {
 		expect(await auditFor(refusedId)).toHaveLength(1);
 	});
 
+	it('refuses an id that is not plain digits instead of reading its first digits', async () => {
+		// Read loosely, "<id>abc" would be the id of the message sent above (a 409, sent already).
+		const res = await admin.postForm('/admin/mail?/resend', {
+			id: `${refusedId}abc`,
+			reason: 'loose id'
+		});
+		expect(res.status).toBe(400);
+		expect(await res.text()).toContain('Enter the number in plain digits');
+		expect(await auditFor(refusedId)).toHaveLength(1);
+	});
+
 	it('answers an id that is no message with a message on the page, not an error', async () => {
 		const res = await admin.postForm('/admin/mail?/resend', {
 			id: '99999999999',

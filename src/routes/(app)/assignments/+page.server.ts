@@ -3,7 +3,7 @@ import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refusalToForm } from '$lib/server/forms';
+import { refusalToForm, superValidatePosted } from '$lib/server/forms';
 import {
 	ASSIGNER_ROLES,
 	assignProcess,
@@ -44,7 +44,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	assign: async (event) => {
 		const user = requireRole(event, ...ASSIGNER_ROLES);
-		const form = await superValidate(event.request, zod4(assignSchema));
+		const form = await superValidatePosted(event.request, zod4(assignSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			const r = await assignProcess(actorFrom(event), user, form.data);
@@ -58,7 +58,7 @@ export const actions: Actions = {
 	},
 	close: async (event) => {
 		const user = requireRole(event, ...ASSIGNER_ROLES);
-		const closeForm = await superValidate(event.request, zod4(closeAssignmentSchema), {
+		const closeForm = await superValidatePosted(event.request, zod4(closeAssignmentSchema), {
 			id: 'close'
 		});
 		if (!closeForm.valid) return fail(400, { closeForm });

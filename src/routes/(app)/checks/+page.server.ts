@@ -13,6 +13,7 @@ import {
 } from '$lib/server/training/checks';
 import { newCheckSchema } from '$lib/schemas/checks';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...CHECK_VIEWER_ROLES);
@@ -27,7 +28,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	create: async (event) => {
 		const user = requireRole(event, ...CHECK_AUTHOR_ROLES);
-		const form = await superValidate(event.request, zod4(newCheckSchema));
+		const form = await superValidatePosted(event.request, zod4(newCheckSchema));
 		if (!form.valid) return fail(400, { form });
 		let created: { id: number; versionId: number };
 		try {

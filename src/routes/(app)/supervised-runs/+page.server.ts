@@ -3,7 +3,7 @@ import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refusalToForm } from '$lib/server/forms';
+import { refusalToForm, superValidatePosted } from '$lib/server/forms';
 import {
 	SUPERVISED_RUN_ROLES,
 	grantSupervisedRun,
@@ -30,7 +30,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	grant: async (event) => {
 		const user = requireRole(event, ...SUPERVISED_RUN_ROLES);
-		const form = await superValidate(event.request, zod4(grantSupervisedRunSchema));
+		const form = await superValidatePosted(event.request, zod4(grantSupervisedRunSchema));
 		if (!form.valid) return fail(400, { form });
 		const now = new Date();
 		try {
@@ -50,7 +50,7 @@ export const actions: Actions = {
 	},
 	revoke: async (event) => {
 		const user = requireRole(event, ...SUPERVISED_RUN_ROLES);
-		const revokeForm = await superValidate(event.request, zod4(revokeSupervisedRunSchema), {
+		const revokeForm = await superValidatePosted(event.request, zod4(revokeSupervisedRunSchema), {
 			id: 'revoke'
 		});
 		if (!revokeForm.valid) return fail(400, { revokeForm });

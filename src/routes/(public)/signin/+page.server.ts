@@ -4,6 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { signInWithCredentials } from '$lib/server/auth/authjs';
 import { badgeSignInSchema, passwordSignInSchema } from '$lib/schemas/people';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 /** Only same-site paths; anything else goes home. */
 function safeRedirect(to: string | null | undefined): string {
@@ -31,7 +32,9 @@ const THROTTLED = 'Too many failed tries. Wait 15 minutes, or ask your line lead
 
 export const actions: Actions = {
 	password: async (event) => {
-		const form = await superValidate(event.request, zod4(passwordSignInSchema), { id: 'password' });
+		const form = await superValidatePosted(event.request, zod4(passwordSignInSchema), {
+			id: 'password'
+		});
 		if (!form.valid) return fail(400, { passwordForm: form });
 		const outcome = await signInWithCredentials(event, {
 			providerId: 'password',
@@ -45,7 +48,7 @@ export const actions: Actions = {
 		return message(form, FAILED, { status: 400 });
 	},
 	badge: async (event) => {
-		const form = await superValidate(event.request, zod4(badgeSignInSchema), { id: 'badge' });
+		const form = await superValidatePosted(event.request, zod4(badgeSignInSchema), { id: 'badge' });
 		if (!form.valid) return fail(400, { badgeForm: form });
 		const outcome = await signInWithCredentials(event, {
 			providerId: 'badge',

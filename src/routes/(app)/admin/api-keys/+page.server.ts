@@ -13,6 +13,7 @@ import {
 } from '$lib/server/apikeys';
 import { createApiKeySchema, revokeApiKeySchema, rotateApiKeySchema } from '$lib/schemas/api-keys';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
@@ -30,7 +31,9 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	create: async (event) => {
 		requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(createApiKeySchema), { id: 'create' });
+		const form = await superValidatePosted(event.request, zod4(createApiKeySchema), {
+			id: 'create'
+		});
 		if (!form.valid) return fail(400, { form });
 		try {
 			const issued = await createApiKey(actorFrom(event), form.data);
@@ -42,7 +45,7 @@ export const actions: Actions = {
 	},
 	rotate: async (event) => {
 		requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(rotateApiKeySchema));
+		const form = await superValidatePosted(event.request, zod4(rotateApiKeySchema));
 		if (!form.valid)
 			return fail(400, { rotateError: { id: form.data.id, message: 'Invalid request' } });
 		try {
@@ -57,7 +60,7 @@ export const actions: Actions = {
 	},
 	revoke: async (event) => {
 		requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(revokeApiKeySchema));
+		const form = await superValidatePosted(event.request, zod4(revokeApiKeySchema));
 		if (!form.valid) {
 			const message = form.errors.reason?.[0] ?? 'Invalid request';
 			return fail(400, { revokeError: { id: form.data.id, message, reason: form.data.reason } });

@@ -1,5 +1,4 @@
 import { fail, redirect } from '@sveltejs/kit';
-import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
@@ -11,6 +10,7 @@ import {
 } from '$lib/server/mail/outbox-admin';
 import { resendMailSchema } from '$lib/schemas/mail';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
@@ -25,7 +25,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	resend: async (event) => {
 		requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(resendMailSchema));
+		const form = await superValidatePosted(event.request, zod4(resendMailSchema));
 		const id = Number.isSafeInteger(form.data.id) ? form.data.id : 0;
 		if (!form.valid) {
 			const message = form.errors.reason?.[0] ?? form.errors.id?.[0] ?? 'Invalid request';

@@ -4,7 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
 import { pageRefusal } from '$lib/server/errors';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	CERTIFICATE_MANAGER_ROLES,
 	changeCertificateState,
@@ -28,7 +28,9 @@ export const load: PageServerLoad = async (event) => {
 function stateAction(action: StateAction) {
 	return async (event: RequestEvent) => {
 		const user = requireRole(event, ...CERTIFICATE_MANAGER_ROLES);
-		const form = await superValidate(event.request, zod4(certificateStateSchema), { id: 'state' });
+		const form = await superValidatePosted(event.request, zod4(certificateStateSchema), {
+			id: 'state'
+		});
 		if (!form.valid) return fail(400, { stateForm: form, action });
 		try {
 			await changeCertificateState(

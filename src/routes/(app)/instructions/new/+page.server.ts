@@ -7,6 +7,7 @@ import { requireRole } from '$lib/server/auth/guards';
 import { AUTHOR_ROLES, createInstruction, listInstructionChoices } from '$lib/server/instructions';
 import { newInstructionSchema } from '$lib/schemas/instructions';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 const TEMPLATE = `# Purpose
 
@@ -31,7 +32,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, ...AUTHOR_ROLES);
-		const form = await superValidate(event.request, zod4(newInstructionSchema));
+		const form = await superValidatePosted(event.request, zod4(newInstructionSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			await createInstruction(

@@ -67,7 +67,7 @@ export const actions: Actions = {
 	},
 	hold: async (event) => {
 		const user = requireRole(event, ...RETENTION_ROLES);
-		const form = await superValidate(event.request, zod4(placeHoldSchema), { id: 'hold' });
+		const form = await superValidatePosted(event.request, zod4(placeHoldSchema), { id: 'hold' });
 		if (!form.valid) return fail(400, { holdForm: form });
 		try {
 			await placeLegalHold({ ...actorFrom(event), id: user.id }, form.data, user.timeZone);
@@ -78,7 +78,9 @@ export const actions: Actions = {
 	},
 	release: async (event) => {
 		const user = requireRole(event, ...RETENTION_ROLES);
-		const form = await superValidate(event.request, zod4(releaseHoldSchema), { id: 'release' });
+		const form = await superValidatePosted(event.request, zod4(releaseHoldSchema), {
+			id: 'release'
+		});
 		if (!form.valid) return fail(400, { releaseForm: form });
 		// One form per open hold: the answer comes back under `releaseForm` for the row it names.
 		try {
@@ -101,7 +103,7 @@ export const actions: Actions = {
 	},
 	run: async (event) => {
 		const user = requireRole(event, ...RETENTION_ROLES);
-		const form = await superValidate(event.request, zod4(retentionRunSchema), { id: 'run' });
+		const form = await superValidatePosted(event.request, zod4(retentionRunSchema), { id: 'run' });
 		if (!form.valid) return fail(400, { runForm: form });
 		let runId: number;
 		try {

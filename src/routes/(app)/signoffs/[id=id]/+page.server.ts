@@ -4,7 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireUser } from '$lib/server/auth/guards';
 import { pageRefusal, Refusal } from '$lib/server/errors';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	countersignSignoff,
 	getSignoffForViewer,
@@ -27,7 +27,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	item: async (event) => {
 		const user = requireUser(event);
-		const form = await superValidate(event.request, zod4(signoffItemSchema));
+		const form = await superValidatePosted(event.request, zod4(signoffItemSchema));
 		const values = {
 			itemId: form.data.itemId,
 			result: form.data.result,
@@ -61,7 +61,7 @@ export const actions: Actions = {
 	},
 	sign: async (event) => {
 		const user = requireUser(event);
-		const form = await superValidate(event.request, zod4(trainerSignSchema), { id: 'sign' });
+		const form = await superValidatePosted(event.request, zod4(trainerSignSchema), { id: 'sign' });
 		if (!form.valid) return fail(400, { signForm: form });
 		const { password } = form.data;
 		form.data.password = '';
@@ -79,7 +79,9 @@ export const actions: Actions = {
 	},
 	countersign: async (event) => {
 		const user = requireUser(event);
-		const form = await superValidate(event.request, zod4(countersignSchema), { id: 'countersign' });
+		const form = await superValidatePosted(event.request, zod4(countersignSchema), {
+			id: 'countersign'
+		});
 		if (!form.valid) return fail(400, { countersignForm: form });
 		const { password } = form.data;
 		form.data.password = '';

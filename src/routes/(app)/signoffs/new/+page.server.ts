@@ -3,7 +3,7 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import { findPeopleToObserve, listStartChoices, startSignoff } from '$lib/server/training/signoffs';
 import { personSearchSchema, startSignoffSchema } from '$lib/schemas/signoffs';
 import type { Actions, PageServerLoad } from './$types';
@@ -23,7 +23,9 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	start: async (event) => {
 		const user = requireRole(event, 'trainer');
-		const form = await superValidate(event.request, zod4(startSignoffSchema), { id: 'start' });
+		const form = await superValidatePosted(event.request, zod4(startSignoffSchema), {
+			id: 'start'
+		});
 		if (!form.valid) return fail(400, { form });
 		let id: number;
 		try {

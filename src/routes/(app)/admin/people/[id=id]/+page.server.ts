@@ -12,7 +12,7 @@ import {
 } from '$lib/server/people';
 import { deactivatePerson, rehirePerson } from '$lib/server/people/leavers';
 import { legalHoldsOf } from '$lib/server/records/retention-holds';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	deactivateSchema,
 	personSchema,
@@ -75,7 +75,7 @@ export const actions: Actions = {
 	save: async (event) => {
 		requireRole(event, 'admin');
 		const person = await existing(event.params);
-		const form = await superValidate(event.request, zod4(personSchema));
+		const form = await superValidatePosted(event.request, zod4(personSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			await updatePerson(actorFrom(event), person.id, form.data);
@@ -89,7 +89,7 @@ export const actions: Actions = {
 	reset: async (event) => {
 		requireRole(event, 'admin');
 		const person = await existing(event.params);
-		const form = await superValidate(event.request, zod4(resetSecretSchema), { id: 'reset' });
+		const form = await superValidatePosted(event.request, zod4(resetSecretSchema), { id: 'reset' });
 		if (!form.valid) return fail(400, { resetForm: form });
 		try {
 			await resetSecret(
@@ -109,7 +109,7 @@ export const actions: Actions = {
 	deactivate: async (event) => {
 		const admin = requireRole(event, 'admin');
 		const person = await existing(event.params);
-		const form = await superValidate(event.request, zod4(deactivateSchema), { id: 'active' });
+		const form = await superValidatePosted(event.request, zod4(deactivateSchema), { id: 'active' });
 		if (!form.valid) return fail(400, { activeForm: form });
 		if (person.id === admin.id)
 			return message(form, 'You cannot deactivate yourself.', { status: 400 });
@@ -120,7 +120,7 @@ export const actions: Actions = {
 	reactivate: async (event) => {
 		requireRole(event, 'admin');
 		const person = await existing(event.params);
-		const form = await superValidate(event.request, zod4(rehireSchema), { id: 'rehire' });
+		const form = await superValidatePosted(event.request, zod4(rehireSchema), { id: 'rehire' });
 		if (!form.valid) return fail(400, { rehireForm: form });
 		try {
 			await rehirePerson(actorFrom(event), person.id, form.data);

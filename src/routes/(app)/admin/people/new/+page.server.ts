@@ -6,6 +6,7 @@ import { requireRole } from '$lib/server/auth/guards';
 import { ConflictError, createPerson, personFormChoices } from '$lib/server/people';
 import { personSchema } from '$lib/schemas/people';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
@@ -18,7 +19,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	save: async (event) => {
 		const admin = requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(personSchema));
+		const form = await superValidatePosted(event.request, zod4(personSchema));
 		if (!form.valid) return fail(400, { form });
 		let id: number;
 		try {

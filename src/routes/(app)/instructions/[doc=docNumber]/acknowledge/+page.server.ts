@@ -7,6 +7,7 @@ import { Refusal, pageRefusal } from '$lib/server/errors';
 import { acknowledgeRevision, acknowledgementView } from '$lib/server/training/acknowledge';
 import { acknowledgeSchema } from '$lib/schemas/training';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
@@ -30,7 +31,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireUser(event);
-		const form = await superValidate(event.request, zod4(acknowledgeSchema));
+		const form = await superValidatePosted(event.request, zod4(acknowledgeSchema));
 		if (!form.valid) return fail(400, { form: { ...form, data: { ...form.data, secret: '' } } });
 		const secret = form.data.secret;
 		form.data.secret = '';

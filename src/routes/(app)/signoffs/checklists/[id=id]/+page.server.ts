@@ -3,7 +3,7 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	getChecklist,
 	listChecklistRevisionChoices,
@@ -33,7 +33,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	save: async (event) => {
 		const user = requireRole(event, 'trainer', 'quality');
-		const form = await superValidate(event.request, zod4(checklistSchema), { id: 'edit' });
+		const form = await superValidatePosted(event.request, zod4(checklistSchema), { id: 'edit' });
 		if (!form.valid) return fail(400, { form });
 		try {
 			await updateChecklist({ ...actorFrom(event), id: user.id }, Number(event.params.id), {
@@ -47,7 +47,7 @@ export const actions: Actions = {
 	},
 	retire: async (event) => {
 		const user = requireRole(event, 'trainer', 'quality');
-		const form = await superValidate(event.request, zod4(retireSchema), { id: 'retire' });
+		const form = await superValidatePosted(event.request, zod4(retireSchema), { id: 'retire' });
 		if (!form.valid) return fail(400, { retireForm: form });
 		try {
 			await retireChecklist(

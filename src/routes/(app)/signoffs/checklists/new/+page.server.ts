@@ -3,7 +3,7 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireRole } from '$lib/server/auth/guards';
-import { refuseForm } from '$lib/server/forms';
+import { refuseForm, superValidatePosted } from '$lib/server/forms';
 import { createChecklist, listChecklistRevisionChoices } from '$lib/server/training/signoffs';
 import { checklistSchema, splitChecklistItems } from '$lib/schemas/signoffs';
 import type { Actions, PageServerLoad } from './$types';
@@ -19,7 +19,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	save: async (event) => {
 		const user = requireRole(event, 'trainer', 'quality');
-		const form = await superValidate(event.request, zod4(checklistSchema));
+		const form = await superValidatePosted(event.request, zod4(checklistSchema));
 		if (!form.valid) return fail(400, { form });
 		let id: number;
 		try {

@@ -7,6 +7,7 @@ import { getLine, updateLine } from '$lib/server/plant';
 import { activeActions, activeForm, fieldFailure } from '$lib/server/plant/forms';
 import { lineSchema } from '$lib/schemas/plant';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	const admin = requireRole(event, 'admin');
@@ -25,7 +26,7 @@ export const actions: Actions = {
 		const admin = requireRole(event, 'admin');
 		const line = await getLine(Number(event.params.id), admin.siteId);
 		if (!line) error(404, { message: 'No such line' });
-		const form = await superValidate(event.request, zod4(lineSchema));
+		const form = await superValidatePosted(event.request, zod4(lineSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			const changed = await updateLine(actorFrom(event), line.id, form.data);

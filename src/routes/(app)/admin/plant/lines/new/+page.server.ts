@@ -7,6 +7,7 @@ import { createLine } from '$lib/server/plant';
 import { fieldFailure } from '$lib/server/plant/forms';
 import { lineSchema } from '$lib/schemas/plant';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
@@ -16,7 +17,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	save: async (event) => {
 		const admin = requireRole(event, 'admin');
-		const form = await superValidate(event.request, zod4(lineSchema));
+		const form = await superValidatePosted(event.request, zod4(lineSchema));
 		if (!form.valid) return fail(400, { form });
 		let id: number;
 		try {

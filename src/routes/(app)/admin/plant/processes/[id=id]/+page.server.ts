@@ -7,6 +7,7 @@ import { getProcess, updateProcess } from '$lib/server/plant';
 import { activeActions, activeForm, fieldFailure } from '$lib/server/plant/forms';
 import { processSchema } from '$lib/schemas/plant';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
@@ -25,7 +26,7 @@ export const actions: Actions = {
 		requireRole(event, 'admin');
 		const process = await getProcess(Number(event.params.id));
 		if (!process) error(404, { message: 'No such process' });
-		const form = await superValidate(event.request, zod4(processSchema));
+		const form = await superValidatePosted(event.request, zod4(processSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			const changed = await updateProcess(actorFrom(event), process.id, form.data);

@@ -7,6 +7,7 @@ import { getShift, updateShift } from '$lib/server/plant';
 import { fieldFailure } from '$lib/server/plant/forms';
 import { shiftSchema } from '$lib/schemas/plant';
 import type { Actions, PageServerLoad } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 export const load: PageServerLoad = async (event) => {
 	const admin = requireRole(event, 'admin');
@@ -24,7 +25,7 @@ export const actions: Actions = {
 		const admin = requireRole(event, 'admin');
 		const shift = await getShift(Number(event.params.id), admin.siteId);
 		if (!shift) error(404, { message: 'No such shift' });
-		const form = await superValidate(event.request, zod4(shiftSchema));
+		const form = await superValidatePosted(event.request, zod4(shiftSchema));
 		if (!form.valid) return fail(400, { form });
 		try {
 			const changed = await updateShift(actorFrom(event), shift.id, form.data);

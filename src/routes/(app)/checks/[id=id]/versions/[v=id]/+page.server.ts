@@ -106,7 +106,7 @@ export const actions: Actions = {
 	approve: async (event) => {
 		const user = requireRole(event, ...CHECK_APPROVER_ROLES);
 		const { version } = await versionOf(event);
-		const form = await superValidate(event.request, zod4(approveSchema), { id: 'approve' });
+		const form = await superValidatePosted(event.request, zod4(approveSchema), { id: 'approve' });
 		if (!form.valid) return fail(400, { approveForm: form });
 		const { password, comment } = form.data;
 		form.data.password = '';
@@ -125,7 +125,7 @@ export const actions: Actions = {
 	return: async (event) => {
 		const user = requireRole(event, ...CHECK_APPROVER_ROLES);
 		const { version } = await versionOf(event);
-		const form = await superValidate(event.request, zod4(returnSchema), { id: 'return' });
+		const form = await superValidatePosted(event.request, zod4(returnSchema), { id: 'return' });
 		if (!form.valid) return fail(400, { returnForm: form });
 		try {
 			await returnVersion(actorOf(event, user.id), version.id, form.data.comment);

@@ -18,6 +18,7 @@ import {
 } from '$lib/server/instructions';
 import { draftSaveSchema, submitSchema } from '$lib/schemas/instructions';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 async function draftOf(event: RequestEvent) {
 	const user = requireRole(event, ...AUTHOR_ROLES);
@@ -87,7 +88,7 @@ export const actions: Actions = {
 	},
 	submit: async (event) => {
 		const { user, instruction, revision } = await draftOf(event);
-		const form = await superValidate(event.request, zod4(submitSchema));
+		const form = await superValidatePosted(event.request, zod4(submitSchema));
 		if (!form.valid) return fail(400, { submitForm: form });
 		try {
 			await submitRevision({ ...actorFrom(event), id: user.id }, revision.id, form.data);

@@ -21,6 +21,7 @@ import {
 import { rejectSchema, signSchema } from '$lib/schemas/instructions';
 import { localDate } from '$lib/time';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
+import { superValidatePosted } from '$lib/server/forms';
 
 async function reviewOf(event: RequestEvent) {
 	const user = requireRole(event, ...APPROVER_ROLES);
@@ -73,7 +74,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	sign: async (event) => {
 		const { user, instruction, revision } = await reviewOf(event);
-		const form = await superValidate(event.request, zod4(signSchema), { id: 'sign' });
+		const form = await superValidatePosted(event.request, zod4(signSchema), { id: 'sign' });
 		if (!form.valid) return fail(400, { signForm: form });
 		const { password, ...rest } = form.data;
 		form.data.password = '';
@@ -97,7 +98,7 @@ export const actions: Actions = {
 	},
 	reject: async (event) => {
 		const { user, instruction, revision } = await reviewOf(event);
-		const form = await superValidate(event.request, zod4(rejectSchema), { id: 'reject' });
+		const form = await superValidatePosted(event.request, zod4(rejectSchema), { id: 'reject' });
 		if (!form.valid) return fail(400, { rejectForm: form });
 		try {
 			await rejectRevision({ ...actorFrom(event), id: user.id }, revision.id, form.data.comment);
