@@ -88,6 +88,27 @@ try {
 		});
 	}
 
+	// The Records page: the count and the first 50 rows of the whole plant. Its floor is the count
+	// alone (the page cannot show less than how many rows match), run here through mysql2.
+	const { countTrainingRecords } = await import('../../src/lib/server/records/index');
+	const pageTimes: number[] = [];
+	const countTimes: number[] = [];
+	for (let i = 0; i < RUNS; i++) {
+		const s = performance.now();
+		const res = await fetch(`${app.url}/records`, { headers: { cookie } });
+		const html = await res.text();
+		pageTimes.push((performance.now() - s) / 1000);
+		if (res.status !== 200 || !html.includes(`>${rows.toLocaleString('en')}</strong>`))
+			throw new Error(`/records: HTTP ${res.status} without the row count ${rows}`);
+		const c = performance.now();
+		const n = await countTrainingRecords({}, new Date());
+		countTimes.push((performance.now() - c) / 1000);
+		if (n !== rows) throw new Error(`count: ${n}, expected ${rows}`);
+		console.error(
+			`page run ${i + 1}: ${pageTimes[i].toFixed(2)} s, count ${countTimes[i].toFixed(2)} s`
+		);
+	}
+
 	// The floor: the same SELECT, same instant, streamed by the mariadb client to a file.
 	const asOf = new Date();
 	const q = recordsQuery({}, asOf);
@@ -147,6 +168,17 @@ try {
 	console.log(
 		`| floor: same SELECT, mariadb --batch --quick > file | ${floorS.toFixed(2)} | ${Math.round(rows / floorS).toLocaleString('en')} | | ${mib(floorBytes)} | | | 1.0× |`
 	);
+	const pageS = median(pageTimes);
+	const countS = median(countTimes);
+	console.log(
+		`\nThe Records page (whole plant: the row count and the first 50 rows), median of ${RUNS} runs\n`
+	);
+	console.log('| what | seconds | ratio to floor |');
+	console.log('| --- | ---: | ---: |');
+	console.log(
+		`| GET /records (HTTP, built server) | ${pageS.toFixed(2)} | ${(pageS / countS).toFixed(1)}× |`
+	);
+	console.log(`| floor: the count query alone (mysql2) | ${countS.toFixed(2)} | 1.0× |`);
 	console.log(
 		`\nFor scale: the same ${records.length.toLocaleString('en')} rows held in memory as mysql2 rows, records and the CSV text (${(csvText.length / 1e6).toFixed(1)} M characters) grow this process's RSS by ${heldMiB.toFixed(0)} MiB.`
 	);

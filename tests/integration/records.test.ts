@@ -15,7 +15,11 @@ import ExcelJS from 'exceljs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pool } from '../../src/lib/server/db';
 import { evaluateAndIssue } from '../../src/lib/server/certificates/issue';
-import { listTrainingRecords, toTrainingRecord } from '../../src/lib/server/records';
+import {
+	listTrainingRecords,
+	previewTrainingRecords,
+	toTrainingRecord
+} from '../../src/lib/server/records';
 import { localDate, zonedToUtc } from '../../src/lib/time';
 import {
 	appDb,
@@ -631,5 +635,28 @@ describe('the state filter in SQL agrees with training/status.ts', () => {
 		const all = await listTrainingRecords({}, now);
 		expect(all.filter((r) => r.certificate_id != null).length).toBeGreaterThan(20);
 		for (const r of all) expect(r.record_state).toBe(toTrainingRecord(r, now).state);
+	});
+});
+
+describe('the Records page preview', () => {
+	it('is the first rows of the full result, in export order, with its count', async () => {
+		// The preview looks for its rows among the first people only; it must still be exactly
+		// the head of the full result, including where one person's rows cross the limit.
+		const now = new Date();
+		const filters = [{}, { processId: proc.id }, { processId: proc.id, state: 'valid' as const }];
+		let compared = 0;
+		for (const f of filters) {
+			const all = (await listTrainingRecords(f, now)).map((r) => toTrainingRecord(r, now));
+			expect(all.length, JSON.stringify(f)).toBeGreaterThan(0);
+			for (const limit of [1, 2, 3, 5, 8, 50, all.length + 5]) {
+				const preview = await previewTrainingRecords(f, limit, now);
+				expect(preview.total).toBe(all.length);
+				expect(preview.rows, `${JSON.stringify(f)} limit ${limit}`).toEqual(all.slice(0, limit));
+				compared += preview.rows.length;
+			}
+		}
+		expect(compared).toBeGreaterThan(100);
+		const none = await previewTrainingRecords({ personId: 2 ** 31 - 1 }, 50, now);
+		expect(none).toEqual({ total: 0, rows: [] });
 	});
 });

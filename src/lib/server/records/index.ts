@@ -10,7 +10,13 @@ import type { CertificateState } from '../../training/vocabulary';
 import type { TrainingRecord } from '../../records/training-records';
 import type { RecordsFilterInput } from '../../schemas/records';
 import { zonedToUtc } from '../../time';
-import { recordsCountQuery, recordsQuery, type RecordRow, type RecordsFilter } from './query';
+import {
+	recordsCountQuery,
+	recordsFirstPeopleQuery,
+	recordsQuery,
+	type RecordRow,
+	type RecordsFilter
+} from './query';
 
 export type { RecordsFilter } from './query';
 
@@ -156,13 +162,21 @@ export async function countTrainingRecords(f: RecordsFilter, now: Date): Promise
 	return Number(rows[0].n);
 }
 
-/** The count and the first `limit` rows, for the Records page. */
+/**
+ * The count and the first `limit` rows, for the Records page. The rows are looked for among the
+ * first `limit` people only (see recordsFirstPeopleQuery), so a filter of 100,000 rows does not
+ * sort them all for a page of 50.
+ */
 export async function previewTrainingRecords(f: RecordsFilter, limit: number, now = new Date()) {
-	const q = recordsQuery(f, now, limit);
-	const [total, [rows]] = await Promise.all([
+	const first = recordsFirstPeopleQuery(f, now, limit);
+	const [total, [people]] = await Promise.all([
 		countTrainingRecords(f, now),
-		pool.query<RowDataPacket[]>(q.sql, q.params)
+		pool.query<RowDataPacket[]>(first.sql, first.params)
 	]);
+	const personIds = people.map((p) => Number(p.person_id));
+	if (!personIds.length) return { total, rows: [] };
+	const q = recordsQuery({ ...f, personIds }, now, limit);
+	const [rows] = await pool.query<RowDataPacket[]>(q.sql, q.params);
 	return { total, rows: (rows as RecordRow[]).map((r) => toTrainingRecord(r, now)) };
 }
 

@@ -23,6 +23,8 @@ export interface RecordsFilter {
 	lineId?: number;
 	processId?: number;
 	personId?: number;
+	/** Only these people (the preview's first page of people; see recordsFirstPeopleQuery). */
+	personIds?: number[];
 	state?: RecordState;
 }
 
@@ -113,6 +115,18 @@ function within(at: SQL, f: RecordsFilter): SQL {
 
 const hasPeriod = (f: RecordsFilter) => !!(f.from || f.before);
 
+/** An IN list; an empty one matches nothing (NULL is never equal to an id). */
+const inList = (ids: number[]) =>
+	ids.length
+		? sql.join(
+				ids.map((id) => sql`${id}`),
+				sql`, `
+			)
+		: sql`NULL`;
+
+/** What the count and the first-people query need of a row: who it belongs to, in sort order. */
+const keyColumns = sql`p.id AS person_id, p.display_name AS person_name`;
+
 /** The expiring window of each rule: its widest reminder offset, 30 days without any. */
 const ruleWindows = sql`(SELECT cr.id, COALESCE(MAX(j.d), 30) AS expiring_days
 	FROM certification_rules cr
@@ -125,6 +139,7 @@ function certificatePart(f: RecordsFilter, now: Date, countOnly: boolean): SQL {
 	if (f.lineId) where.push(sql`p.line_id = ${f.lineId}`);
 	if (f.processId) where.push(sql`c.process_id = ${f.processId}`);
 	if (f.personId) where.push(sql`c.person_id = ${f.personId}`);
+	if (f.personIds) where.push(sql`c.person_id IN (${inList(f.personIds)})`);
 	if (f.state) where.push(sql`(${status}) = ${f.state}`);
 	if (hasPeriod(f)) {
 		const overlap = [sql`TRUE`];
@@ -149,7 +164,7 @@ function certificatePart(f: RecordsFilter, now: Date, countOnly: boolean): SQL {
 		c.id AS certificate_id, c.number AS certificate_number, c.issued_at, c.expires_at,
 		c.state AS certificate_state, c.grace_until, rd.expiring_days,
 		${status} AS record_state, CAST(NULL AS DATETIME(3)) AS assigned_at`;
-	return sql`SELECT ${countOnly ? sql`1 AS one` : columns}
+	return sql`SELECT ${countOnly ? keyColumns : columns}
 	FROM certificates c
 	JOIN people p ON p.id = c.person_id
 	LEFT JOIN \`lines\` l ON l.id = p.line_id
@@ -175,6 +190,7 @@ function trainingPart(f: RecordsFilter, now: Date, countOnly: boolean): SQL {
 	const pairWhere: SQL[] = [];
 	if (f.processId) pairWhere.push(sql`process_id = ${f.processId}`);
 	if (f.personId) pairWhere.push(sql`person_id = ${f.personId}`);
+	if (f.personIds) pairWhere.push(sql`person_id IN (${inList(f.personIds)})`);
 	const pw = (extra?: SQL) => {
 		const all = extra ? [extra, ...pairWhere] : pairWhere;
 		return all.length ? sql`WHERE ${sql.join(all, sql` AND `)}` : sql``;
@@ -214,7 +230,7 @@ function trainingPart(f: RecordsFilter, now: Date, countOnly: boolean): SQL {
 		NULL AS certificate_id, NULL AS certificate_number, NULL AS issued_at, NULL AS expires_at,
 		NULL AS certificate_state, NULL AS grace_until, NULL AS expiring_days,
 		${state} AS record_state, ${assignedAt} AS assigned_at`;
-	return sql`SELECT ${countOnly ? sql`1 AS one` : columns}
+	return sql`SELECT ${countOnly ? keyColumns : columns}
 	FROM (
 		SELECT person_id, process_id FROM assignments ${pw(sql`closed_at IS NULL`)}
 		UNION SELECT person_id, process_id FROM check_attempts ${pw()}
@@ -274,4 +290,14 @@ export function recordsQuery(f: RecordsFilter, now: Date, limit?: number): Built
  */
 export function recordsCountQuery(f: RecordsFilter, now: Date): BuiltQuery {
 	return dialect.sqlToQuery(sql`SELECT COUNT(*) AS n FROM (${recordsUnion(f, now, true)}) t`);
+}
+
+/**
+ * The first `limit` people, in export order, who have a row under the filter. The export order
+ * starts with the person, so the first `limit` rows all belong to these people: the preview asks
+ * for its rows among them (personIds) instead of sorting every row of the filter.
+ */
+export function recordsFirstPeopleQuery(f: RecordsFilter, now: Date, limit: number): BuiltQuery {
+	return dialect.sqlToQuery(sql`SELECT person_id FROM (${recordsUnion(f, now, true)}) t
+		GROUP BY person_id, person_name ORDER BY person_name, person_id LIMIT ${limit}`);
 }
