@@ -8,6 +8,7 @@ import { startScheduler, stopScheduler } from '$lib/server/jobs/scheduler';
 import { pool } from '$lib/server/db';
 import { config } from '$lib/server/config';
 import { invalidUtf8Fields } from '$lib/server/api';
+import { isBodyTooLarge } from '$lib/server/forms';
 
 export const init: ServerInit = async () => {
 	await ensureBootstrapAdmin();
@@ -100,8 +101,7 @@ const bodyEncoding: Handle = async ({ event, resolve }) => {
 	} catch (err) {
 		// Over BODY_SIZE_LIMIT: adapter-node's reader throws a 413, which a form action would
 		// otherwise see as an empty form and answer with "required" errors.
-		const e = err as { status?: number; cause?: { status?: number } };
-		if (e?.status === 413 || e?.cause?.status === 413) {
+		if (isBodyTooLarge(err)) {
 			return refuse(413, 'The request is larger than the server accepts; nothing was saved.', {});
 		}
 		// Anything else (a body cut off) is left to the route's own answer.

@@ -175,12 +175,36 @@ test('operator certifies: acknowledge, fail, cool-down, pass, practical, certifi
 	await tr.getByRole('button', { name: 'Start observing' }).click();
 	await expect(tr).toHaveURL(/\/signoffs\/\d+$/);
 	await tr.getByLabel('Pass').first().check();
+	// A photo over 10 MB is refused as soon as it is chosen: nothing is sent while it is there.
+	const photo = tr.getByLabel('Photo (optional)').first();
+	await photo.setInputFiles({
+		name: 'too-big.jpg',
+		mimeType: 'image/jpeg',
+		buffer: Buffer.alloc(11 * 1024 * 1024)
+	});
+	expect(await photo.evaluate((el: HTMLInputElement) => el.validationMessage)).toBe(
+		'This file is 11.0 MB; images may be at most 10 MB.'
+	);
+	expect(await photo.evaluate((el: HTMLInputElement) => el.form!.checkValidity())).toBe(false);
+	let posted = 0;
+	const countPosts = (r: import('@playwright/test').Request) => {
+		if (r.method() === 'POST') posted++;
+	};
+	tr.on('request', countPosts);
+	await tr.getByRole('button', { name: 'Save step 1' }).click();
+	await tr.waitForTimeout(300);
+	tr.off('request', countPosts);
+	expect(posted).toBe(0);
+	await photo.setInputFiles([]);
+	expect(await photo.evaluate((el: HTMLInputElement) => el.validationMessage)).toBe('');
 	// Saving a step reloads the page data; sign only once that has landed.
 	await Promise.all([
 		tr.waitForResponse((r) => r.request().method() === 'POST' && /\/signoffs\/\d+/.test(r.url())),
 		tr.getByRole('button', { name: 'Save step 1' }).click()
 	]);
-	await tr.waitForLoadState('networkidle');
+	// "Saved" shows once the page data has been loaded again (networkidle, reached long before,
+	// would not wait for that reload).
+	await expect(tr.getByRole('status').filter({ hasText: 'Saved' })).toBeVisible();
 	await tr.getByLabel('Your password (re-enter to sign)').fill(trainer.password);
 	await tr.getByRole('button', { name: 'Sign the sign-off' }).click();
 	await expect(tr.getByText(/countersign/i).first()).toBeVisible();

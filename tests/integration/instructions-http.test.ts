@@ -266,7 +266,7 @@ describe('upload abuse', () => {
 		expect(disguised.status).toBe(415);
 	});
 
-	it('refuses an empty file and an image one byte over 10 MB', async () => {
+	it('refuses an empty file, an image one byte over 10 MB and a body over the server limit', async () => {
 		const empty = await upload('empty.png', new Uint8Array(0), 'image/png');
 		expect(empty.status).toBe(400);
 		expect((await empty.json()).error).toMatch(/empty \(0 bytes\)/);
@@ -278,6 +278,44 @@ describe('upload abuse', () => {
 		const res = await upload('big.png', big, 'image/png');
 		expect(res.status).toBe(413);
 		expect((await res.json()).error).toMatch(/at most 10 MB/);
+		// Over the server-wide body limit (30 MB) the body cannot be read, yet the answer is the
+		// same kind: 413 with { error, fields }, not "send the file as multipart".
+		const huge = new Uint8Array(31 * 1024 * 1024);
+		huge.set(big.subarray(0, 16), 0);
+		const over = await upload('huge.png', huge, 'image/png');
+		expect(over.status).toBe(413);
+		expect(await over.json()).toEqual({
+			error: expect.stringMatching(/larger than the server accepts: images may be at most 10 MB/),
+			fields: { file: 'Too large.' }
+		});
+	});
+
+	it('answers the same two sizes on the upload form of the edit page, in the page', async () => {
+		const post = (bytes: Uint8Array) => {
+			const f = new FormData();
+			f.set('file', new Blob([bytes as BlobPart], { type: 'image/png' }), 'big.png');
+			// As a browser without JavaScript posts it: the page comes back drawn again.
+			return asTrainer.fetch(`/instructions/${doc}/revisions/A/edit?/upload`, {
+				method: 'POST',
+				body: f,
+				headers: { accept: 'text/html' }
+			});
+		};
+		const png = [
+			0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52
+		];
+		for (const [mb, status, text] of [
+			[11, 413, /at most 10 MB/],
+			[31, 413, /larger than the server accepts\. Images may be at most 10 MB/]
+		] as const) {
+			const bytes = new Uint8Array(mb * 1024 * 1024);
+			bytes.set(png, 0);
+			const res = await post(bytes);
+			const html = await res.text();
+			expect(res.status, `${mb} MB`).toBe(status);
+			expect(html, `${mb} MB`).toMatch(text);
+			expect(html).toContain('action="?/upload"');
+		}
 	});
 
 	it('refuses a pixel flood', async () => {

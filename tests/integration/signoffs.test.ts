@@ -142,6 +142,25 @@ describe('observe, sign, countersign', () => {
 		expect(row.state).toBe('draft');
 	});
 
+	it('answers a photo over 10 MB, and one over the server-wide limit, on the photo field', async () => {
+		const png = new Uint8Array(await (await pngBlob()).arrayBuffer());
+		for (const mb of [11, 31]) {
+			// A real PNG head, padded to the size: only the size may refuse it.
+			const big = new Uint8Array(mb * 1024 * 1024);
+			big.set(png, 0);
+			const res = await trainerHttp.post(
+				`/signoffs/${id}?/item`,
+				itemForm(itemIds[0], 'pass', 'label read', new Blob([big], { type: 'image/png' }))
+			);
+			expect(res.status, `${mb} MB`).toBe(413);
+			const html = await res.text();
+			expect(html, `${mb} MB`).toMatch(/at most 10 MB/);
+			expect(html).toContain('<form');
+		}
+		const [row] = await db.select().from(signoffs).where(eq(signoffs.id, id));
+		expect(row.state).toBe('draft');
+	});
+
 	it('refuses to sign while a step is unmarked', async () => {
 		const res = await trainerHttp.postForm(`/signoffs/${id}?/sign`, { password: trainer.password });
 		expect(res.status).toBe(400);

@@ -49,6 +49,15 @@ export function refusalToForm<T extends Record<string, unknown>>(
 	return fail(status, { form });
 }
 
+/**
+ * Whether reading a request body failed because it is over BODY_SIZE_LIMIT: adapter-node's reader
+ * fails with a 413 (directly or as the cause of the body stream's error).
+ */
+export function isBodyTooLarge(err: unknown): boolean {
+	const e = err as { status?: number; cause?: { status?: number } } | null;
+	return e?.status === 413 || e?.cause?.status === 413;
+}
+
 // Plain decimal digits, as a number input sends them ("10", "-3", "80.5").
 const PLAIN_NUMBER = /^\s*-?\d+(\.\d+)?\s*$/;
 

@@ -11,9 +11,8 @@ import { deleteObject, putObject } from '../storage';
 import { InstructionError, isDuplicateKey, notFound } from './errors';
 import { computeContentHash } from './hash';
 import { listRevisionFiles } from './queries';
+import { IMAGE_LIMIT_BYTES, PDF_LIMIT_BYTES } from '../../upload-limits';
 
-export const IMAGE_LIMIT_BYTES = 10 * 1024 * 1024;
-export const PDF_LIMIT_BYTES = 20 * 1024 * 1024;
 /** Decoded pixels allowed per image (a 40-megapixel photo), against decompression bombs. */
 export const IMAGE_PIXEL_LIMIT = 40_000_000;
 

@@ -4,7 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireUser } from '$lib/server/auth/guards';
 import { pageRefusal, Refusal } from '$lib/server/errors';
-import { refuseForm, superValidatePosted } from '$lib/server/forms';
+import { isBodyTooLarge, refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	countersignSignoff,
 	getSignoffForViewer,
@@ -27,7 +27,24 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	item: async (event) => {
 		const user = requireUser(event);
-		const form = await superValidatePosted(event.request, zod4(signoffItemSchema));
+		// The step is in the URL too: a body over the server-wide limit cannot be read at all, and
+		// its refusal still belongs under that step's photo field.
+		const step = Number(event.url.searchParams.get('step'));
+		const form = await superValidatePosted(event.request, zod4(signoffItemSchema)).catch((err) => {
+			if (isBodyTooLarge(err)) return null;
+			throw err;
+		});
+		if (!form)
+			return fail(413, {
+				item: {
+					itemId: Number.isSafeInteger(step) ? step : 0,
+					result: undefined,
+					comment: undefined,
+					errors: {
+						photo: 'The upload is larger than the server accepts. Choose a photo of at most 10 MB.'
+					} as Record<string, string | undefined>
+				}
+			});
 		const values = {
 			itemId: form.data.itemId,
 			result: form.data.result,

@@ -18,7 +18,7 @@ import {
 } from '$lib/server/instructions';
 import { draftSaveSchema, submitSchema } from '$lib/schemas/instructions';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
-import { superValidatePosted } from '$lib/server/forms';
+import { isBodyTooLarge, superValidatePosted } from '$lib/server/forms';
 
 async function draftOf(event: RequestEvent) {
 	const user = requireRole(event, ...AUTHOR_ROLES);
@@ -101,7 +101,16 @@ export const actions: Actions = {
 	},
 	upload: async (event) => {
 		const { user, revision } = await draftOf(event);
-		const parsed = fileForm.safeParse(Object.fromEntries(await event.request.formData()));
+		const body = await event.request.formData().catch((err) => {
+			if (isBodyTooLarge(err)) return null;
+			throw err;
+		});
+		if (!body)
+			return fail(413, {
+				uploadError:
+					'The file is larger than the server accepts. Images may be at most 10 MB, PDF files 20 MB.'
+			});
+		const parsed = fileForm.safeParse(Object.fromEntries(body));
 		if (!parsed.success) return fail(400, { uploadError: parsed.error.issues[0].message });
 		const file = parsed.data.file;
 		try {

@@ -1,6 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { actorFrom } from '$lib/server/audit';
 import { requireApiRole } from '$lib/server/auth/guards';
+import { isBodyTooLarge } from '$lib/server/forms';
 import {
 	AUTHOR_ROLES,
 	addRevisionFile,
@@ -12,7 +13,20 @@ import type { RequestHandler } from './$types';
 /** Upload one file (multipart field `file`) into a draft revision. */
 export const POST: RequestHandler = async (event) => {
 	const user = requireApiRole(event, ...AUTHOR_ROLES);
-	const form = await event.request.formData().catch(() => null);
+	let tooLarge = false;
+	const form = await event.request.formData().catch((err) => {
+		tooLarge = isBodyTooLarge(err);
+		return null;
+	});
+	if (tooLarge)
+		return json(
+			{
+				error:
+					'The upload is larger than the server accepts: images may be at most 10 MB, PDFs 20 MB.',
+				fields: { file: 'Too large.' }
+			},
+			{ status: 413 }
+		);
 	const file = form?.get('file');
 	if (!(file instanceof File))
 		return json(
