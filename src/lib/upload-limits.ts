@@ -25,11 +25,13 @@ export function oversizeMessage(
 }
 
 /**
- * For a file input's change event: the browser keeps the form from being sent, and says why, while
- * the chosen file is too large.
+ * For a file input's change event: while the chosen file is too large the browser keeps the form
+ * from being sent and says why; the message is returned for the page to show beside the field.
  */
-export function checkChosenFile(input: HTMLInputElement, accepts: { pdf: boolean }): void {
+export function checkChosenFile(input: HTMLInputElement, accepts: { pdf: boolean }): string {
 	const file = input.files?.[0];
-	input.setCustomValidity(file ? oversizeMessage(file, accepts) : '');
-	input.reportValidity();
+	const problem = file ? oversizeMessage(file, accepts) : '';
+	input.setCustomValidity(problem);
+	if (problem) input.reportValidity();
+	return problem;
 }

@@ -186,6 +186,8 @@ test('operator certifies: acknowledge, fail, cool-down, pass, practical, certifi
 		'This file is 11.0 MB; images may be at most 10 MB.'
 	);
 	expect(await photo.evaluate((el: HTMLInputElement) => el.form!.checkValidity())).toBe(false);
+	const tooLarge = tr.getByText('This file is 11.0 MB; images may be at most 10 MB.');
+	await expect(tooLarge).toBeVisible();
 	let posted = 0;
 	const countPosts = (r: import('@playwright/test').Request) => {
 		if (r.method() === 'POST') posted++;
@@ -197,6 +199,7 @@ test('operator certifies: acknowledge, fail, cool-down, pass, practical, certifi
 	expect(posted).toBe(0);
 	await photo.setInputFiles([]);
 	expect(await photo.evaluate((el: HTMLInputElement) => el.validationMessage)).toBe('');
+	await expect(tooLarge).toBeHidden();
 	// Saving a step reloads the page data; sign only once that has landed.
 	await Promise.all([
 		tr.waitForResponse((r) => r.request().method() === 'POST' && /\/signoffs\/\d+/.test(r.url())),
