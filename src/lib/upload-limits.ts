@@ -26,12 +26,12 @@ export function oversizeMessage(
 
 /**
  * For a file input's change event: while the chosen file is too large the browser keeps the form
- * from being sent and says why; the message is returned for the page to show beside the field.
+ * from being sent; the message is returned for the page to show beside the field.
  */
 export function checkChosenFile(input: HTMLInputElement, accepts: { pdf: boolean }): string {
 	const file = input.files?.[0];
 	const problem = file ? oversizeMessage(file, accepts) : '';
+	// The page shows the message beside the field; the browser's own bubble comes on a submit.
 	input.setCustomValidity(problem);
-	if (problem) input.reportValidity();
 	return problem;
 }

@@ -144,18 +144,26 @@ describe('observe, sign, countersign', () => {
 
 	it('answers a photo over 10 MB, and one over the server-wide limit, on the photo field', async () => {
 		const png = new Uint8Array(await (await pngBlob()).arrayBuffer());
-		for (const mb of [11, 31]) {
+		for (const [mb, message] of [
+			[11, 'The file is 11.0 MB; images may be at most 10 MB.'],
+			// Over the limit the body cannot be read: the step comes from the form's URL.
+			[
+				31,
+				'The upload is larger than the server accepts, so nothing of this step was saved. Choose a photo of at most 10 MB and save the step again.'
+			]
+		] as const) {
 			// A real PNG head, padded to the size: only the size may refuse it.
 			const big = new Uint8Array(mb * 1024 * 1024);
 			big.set(png, 0);
 			const res = await trainerHttp.post(
-				`/signoffs/${id}?/item`,
+				`/signoffs/${id}?/item&step=${itemIds[0]}`,
 				itemForm(itemIds[0], 'pass', 'label read', new Blob([big], { type: 'image/png' }))
 			);
 			expect(res.status, `${mb} MB`).toBe(413);
 			const html = await res.text();
-			expect(html, `${mb} MB`).toMatch(/at most 10 MB/);
-			expect(html).toContain('<form');
+			// Under step 1's photo field (its error is described by the input).
+			expect(html, `${mb} MB`).toContain(message);
+			expect(html).toMatch(new RegExp(`id="photo-${itemIds[0]}"[^>]*aria-invalid="true"`));
 		}
 		const [row] = await db.select().from(signoffs).where(eq(signoffs.id, id));
 		expect(row.state).toBe('draft');

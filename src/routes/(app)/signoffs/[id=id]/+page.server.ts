@@ -41,7 +41,8 @@ export const actions: Actions = {
 					result: undefined,
 					comment: undefined,
 					errors: {
-						photo: 'The upload is larger than the server accepts. Choose a photo of at most 10 MB.'
+						photo:
+							'The upload is larger than the server accepts, so nothing of this step was saved. Choose a photo of at most 10 MB and save the step again.'
 					} as Record<string, string | undefined>
 				}
 			});
