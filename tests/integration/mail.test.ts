@@ -5,6 +5,7 @@
 // assertions still look only at this file's own recipients and rows.
 import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
+import { createServer, type AddressInfo } from 'node:net';
 import path from 'node:path';
 import type { ResultSetHeader } from 'mysql2/promise';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -20,7 +21,7 @@ import {
 } from '../../src/lib/server/mail/events';
 import { MAX_ATTEMPTS, queueMail } from '../../src/lib/server/mail/outbox';
 import { queueExpiryReminders } from '../../src/lib/server/mail/reminders';
-import { messageIdFor, sendPendingMail } from '../../src/lib/server/mail/send';
+import { createTransport, messageIdFor, sendPendingMail } from '../../src/lib/server/mail/send';
 import {
 	appDb,
 	closeDbHelpers,
@@ -321,6 +322,35 @@ describe('the sender', () => {
 		expect(row.sent_at).not.toBeNull();
 		expect(row.attempts).toBe(1);
 		expect(await caughtFor(address)).toHaveLength(1);
+	});
+
+	it('fails at once, naming the cause, when nothing listens on the mail port', async () => {
+		// The worker opens its own sockets (Nagle off, see send.ts): a refused connection must
+		// still come back as nodemailer's error, not hang the batch.
+		const closed = await new Promise<number>((resolve) => {
+			const srv = createServer().listen(0, '127.0.0.1', () => {
+				const { port } = srv.address() as AddressInfo;
+				srv.close(() => resolve(port));
+			});
+		});
+		const port = config.smtp.port;
+		config.smtp.port = closed;
+		const transport = createTransport();
+		try {
+			const started = Date.now();
+			await expect(
+				transport.sendMail({
+					from: config.mailFrom,
+					to: 'x@test.kbo2.example',
+					subject: 'x',
+					text: 'x'
+				})
+			).rejects.toMatchObject({ code: 'ECONNREFUSED' });
+			expect(Date.now() - started).toBeLessThan(2_000);
+		} finally {
+			transport.close();
+			config.smtp.port = port;
+		}
 	});
 
 	it('two senders in this process and one in another Node process send each row once', async () => {
