@@ -50,9 +50,20 @@ export function refusalToForm<T extends Record<string, unknown>>(
 }
 
 /**
- * Whether reading a request body failed because it is over BODY_SIZE_LIMIT: adapter-node's reader
- * fails with a 413 (directly or as the cause of the body stream's error).
+ * The posted form, or null when the body is over BODY_SIZE_LIMIT and cannot be read: adapter-node's
+ * reader fails with a 413 (directly or as the cause of the body stream's error). The caller answers
+ * 413 where the user will see it (a field, the page); any other failure is thrown on.
  */
+export async function postedFormData(request: Request): Promise<FormData | null> {
+	try {
+		return await request.formData();
+	} catch (err) {
+		if (isBodyTooLarge(err)) return null;
+		throw err;
+	}
+}
+
+/** Whether a failure to read a body is adapter-node's 413 for a body over BODY_SIZE_LIMIT. */
 export function isBodyTooLarge(err: unknown): boolean {
 	const e = err as { status?: number; cause?: { status?: number } } | null;
 	return e?.status === 413 || e?.cause?.status === 413;
@@ -71,11 +82,11 @@ export async function superValidatePosted<
 	M = any,
 	In extends Record<string, unknown> = Out
 >(
-	request: Request,
+	request: Request | FormData,
 	adapter: ValidationAdapter<Out, In>,
 	options?: SuperValidateOptions<Out>
 ): Promise<SuperValidated<Out, M, In>> {
-	const data = await request.formData();
+	const data = request instanceof FormData ? request : await request.formData();
 	const form = await superValidate<Out, M, In>(data, adapter, options);
 	for (const [key, value] of Object.entries(form.data)) {
 		if (typeof value !== 'number') continue;

@@ -46,6 +46,8 @@ export function messageIdFor(id: number, dedupeKey: string): string {
 	return `<padbridge.${id}.${h}@${mailDomain()}>`;
 }
 
+const CONNECT_TIMEOUT_MS = 5_000;
+
 /**
  * A TCP connection to the mail server with Nagle's algorithm off. nodemailer writes each SMTP
  * command and the message's closing dot as small separate writes; with Nagle on, each waits for the
@@ -75,8 +77,6 @@ function noDelaySocket(
 	socket.once('connect', () => done(null, socket));
 	socket.once('error', (err) => done(err, socket));
 }
-
-const CONNECT_TIMEOUT_MS = 5_000;
 
 /** One pooled connection per batch: the batch's messages go over it one after another. */
 export function createTransport() {

@@ -164,17 +164,15 @@ export async function countTrainingRecords(f: RecordsFilter, now: Date): Promise
 
 /**
  * The count and the first `limit` rows, for the Records page. The rows are looked for among the
- * first `limit` people only (see recordsFirstPeopleQuery), so a filter of 100,000 rows does not
- * sort them all for a page of 50.
+ * first `limit` people only (see recordsFirstPeopleQuery, which counts in the same pass), so a
+ * filter of 100,000 rows does not sort them all for a page of 50.
  */
 export async function previewTrainingRecords(f: RecordsFilter, limit: number, now = new Date()) {
 	const first = recordsFirstPeopleQuery(f, now, limit);
-	const [total, [people]] = await Promise.all([
-		countTrainingRecords(f, now),
-		pool.query<RowDataPacket[]>(first.sql, first.params)
-	]);
+	const [people] = await pool.query<RowDataPacket[]>(first.sql, first.params);
+	if (!people.length) return { total: 0, rows: [] };
+	const total = Number(people[0].total);
 	const personIds = people.map((p) => Number(p.person_id));
-	if (!personIds.length) return { total, rows: [] };
 	const q = recordsQuery({ ...f, personIds }, now, limit);
 	const [rows] = await pool.query<RowDataPacket[]>(q.sql, q.params);
 	return { total, rows: (rows as RecordRow[]).map((r) => toTrainingRecord(r, now)) };

@@ -293,11 +293,14 @@ export function recordsCountQuery(f: RecordsFilter, now: Date): BuiltQuery {
 }
 
 /**
- * The first `limit` people, in export order, who have a row under the filter. The export order
- * starts with the person, so the first `limit` rows all belong to these people: the preview asks
- * for its rows among them (personIds) instead of sorting every row of the filter.
+ * The first `limit` people, in export order, who have a row under the filter, each with the
+ * filter's row count (`total`, the same on every row; no rows when nothing matches). The export
+ * order starts with the person, so the first `limit` rows all belong to these people: the preview
+ * asks for its rows among them (personIds) instead of sorting every row of the filter, and gets
+ * its count from the same pass.
  */
 export function recordsFirstPeopleQuery(f: RecordsFilter, now: Date, limit: number): BuiltQuery {
-	return dialect.sqlToQuery(sql`SELECT person_id FROM (${recordsUnion(f, now, true)}) t
+	return dialect.sqlToQuery(sql`SELECT person_id, SUM(COUNT(*)) OVER () AS total
+		FROM (${recordsUnion(f, now, true)}) t
 		GROUP BY person_id, person_name ORDER BY person_name, person_id LIMIT ${limit}`);
 }

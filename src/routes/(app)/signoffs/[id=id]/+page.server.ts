@@ -4,7 +4,7 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { actorFrom } from '$lib/server/audit';
 import { requireUser } from '$lib/server/auth/guards';
 import { pageRefusal, Refusal } from '$lib/server/errors';
-import { isBodyTooLarge, refuseForm, superValidatePosted } from '$lib/server/forms';
+import { postedFormData, refuseForm, superValidatePosted } from '$lib/server/forms';
 import {
 	countersignSignoff,
 	getSignoffForViewer,
@@ -30,11 +30,8 @@ export const actions: Actions = {
 		// The step is in the URL too: a body over the server-wide limit cannot be read at all, and
 		// its refusal still belongs under that step's photo field.
 		const step = Number(event.url.searchParams.get('step'));
-		const form = await superValidatePosted(event.request, zod4(signoffItemSchema)).catch((err) => {
-			if (isBodyTooLarge(err)) return null;
-			throw err;
-		});
-		if (!form)
+		const body = await postedFormData(event.request);
+		if (!body)
 			return fail(413, {
 				item: {
 					itemId: Number.isSafeInteger(step) ? step : 0,
@@ -46,6 +43,7 @@ export const actions: Actions = {
 					} as Record<string, string | undefined>
 				}
 			});
+		const form = await superValidatePosted(body, zod4(signoffItemSchema));
 		const values = {
 			itemId: form.data.itemId,
 			result: form.data.result,

@@ -18,7 +18,7 @@ import {
 } from '$lib/server/instructions';
 import { draftSaveSchema, submitSchema } from '$lib/schemas/instructions';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
-import { isBodyTooLarge, superValidatePosted } from '$lib/server/forms';
+import { postedFormData, superValidatePosted } from '$lib/server/forms';
 
 async function draftOf(event: RequestEvent) {
 	const user = requireRole(event, ...AUTHOR_ROLES);
@@ -101,10 +101,7 @@ export const actions: Actions = {
 	},
 	upload: async (event) => {
 		const { user, revision } = await draftOf(event);
-		const body = await event.request.formData().catch((err) => {
-			if (isBodyTooLarge(err)) return null;
-			throw err;
-		});
+		const body = await postedFormData(event.request);
 		if (!body)
 			return fail(413, {
 				uploadError:

@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { actorFrom } from '$lib/server/audit';
 import { requireApiRole } from '$lib/server/auth/guards';
-import { isBodyTooLarge } from '$lib/server/forms';
+import { postedFormData } from '$lib/server/forms';
 import {
 	AUTHOR_ROLES,
 	addRevisionFile,
@@ -13,12 +13,9 @@ import type { RequestHandler } from './$types';
 /** Upload one file (multipart field `file`) into a draft revision. */
 export const POST: RequestHandler = async (event) => {
 	const user = requireApiRole(event, ...AUTHOR_ROLES);
-	let tooLarge = false;
-	const form = await event.request.formData().catch((err) => {
-		tooLarge = isBodyTooLarge(err);
-		return null;
-	});
-	if (tooLarge)
+	// undefined: not a form body at all (answered below with the field to send).
+	const form = await postedFormData(event.request).catch(() => undefined);
+	if (form === null)
 		return json(
 			{
 				error:
